@@ -11,8 +11,9 @@ import org.apache.commons.math3.random.SobolSequenceGenerator;
  * random Cranley-Patterson shift, mapped through the normal inverse CDF.
  *
  * <p>The shift is a pure function of (run seed, store id), so every store gets its own
- * deterministic draws whatever machine or partition computes them. The first Sobol point (the
- * origin) is skipped.
+ * deterministic draws whatever machine or partition computes them. Points 0 .. R-1 are used: the
+ * shift moves the origin off the corner like any other point, and the first 2^m points of the
+ * sequence form a net, which a skip would break.
  */
 public final class ShopperDraws {
   private static final NormalDistribution STD_NORMAL = new NormalDistribution(null, 0.0, 1.0);
@@ -31,12 +32,7 @@ public final class ShopperDraws {
       throw new IllegalArgumentException("need shoppers > 0 and 0 < dims <= 1000");
     }
     SobolSequenceGenerator sobol = new SobolSequenceGenerator(dims);
-    sobol.skipTo(1);
-    SplitMix64 rng = new SplitMix64(Streams.key(seed, storeId.getBytes(StandardCharsets.UTF_8)));
-    double[] shift = new double[dims];
-    for (int d = 0; d < dims; d++) {
-      shift[d] = rng.nextDouble();
-    }
+    double[] shift = shift(seed, storeId, dims);
     double[] out = new double[shoppers * dims];
     for (int i = 0; i < shoppers; i++) {
       double[] u = sobol.nextVector();
@@ -49,5 +45,18 @@ public final class ShopperDraws {
       }
     }
     return out;
+  }
+
+  /**
+   * The Cranley-Patterson shift of a store: {@code dims} uniforms in [0, 1) from the stream keyed
+   * by (seed, store id). Draw i is {@code Phi^-1(frac(sobol_i + shift))}.
+   */
+  public static double[] shift(long seed, String storeId, int dims) {
+    SplitMix64 rng = new SplitMix64(Streams.key(seed, storeId.getBytes(StandardCharsets.UTF_8)));
+    double[] shift = new double[dims];
+    for (int d = 0; d < dims; d++) {
+      shift[d] = rng.nextDouble();
+    }
+    return shift;
   }
 }
