@@ -1,0 +1,168 @@
+package aislecast.core.mcmc;
+
+import aislecast.core.demand.Heterogeneity;
+import aislecast.core.demand.ShareInversion;
+import aislecast.core.model.LocalParams;
+import aislecast.core.model.StoreData;
+import org.apache.commons.math3.random.RandomGenerator;
+
+/**
+ * The local block of one store for one chain: an HMC move on {@code (psi_s, delta_s)} with
+ * {@code kappa_s} held, then an exact Gibbs draw of {@code kappa_s}. Both leave the store's
+ * conditional posterior given the globals invariant, so any number of them per sweep keeps the
+ * whole scheme exact. During warmup the HMC step size follows dual averaging and the diagonal
+ * mass matrix is re-estimated at the end of each slow window ({@link WarmupSchedule}).
+ */
+public final class StoreSampler {
+  /** Tuning that stays fixed for a run. */
+  public record Settings(int warmup, int leapfrogSteps, double targetAccept) {
+    public Settings {
+      if (warmup < 0 || leapfrogSteps < 1 || !(targetAccept > 0 && targetAccept < 1)) {
+        throw new IllegalArgumentException("bad local sampler settings");
+      }
+    }
+  }
+
+  private final StoreTarget target;
+  private final StoreData d;
+  private final int kpsi;
+  private final double[] sums;
+  private final double[] varBuf;
+
+  public StoreSampler(StoreData d, double[] x, int kx) {
+    this.d = d;
+    this.target = new StoreTarget(d, x, kx);
+    this.kpsi = Heterogeneity.dim(kx);
+    this.sums = new double[2 * d.products.length];
+    this.varBuf = new double[kpsi + d.rows()];
+  }
+
+  /**
+   * A starting state: psi at its prior mean, delta by inverting the observed shares (a zero-unit
+   * row uses half a unit), kappa from a Gibbs draw given that delta.
+   */
+  public StoreChainState init(RandomGenerator rng, LocalParams g, double[] x, int kx) {
+    double[] psi = new double[kpsi];
+    g.psiMean(d.demographics, psi);
+    for (int k = 0; k < kpsi; k++) {
+      psi[k] += 0.1 * rng.nextGaussian();
+    }
+    double[] delta = invertShares(psi, x, kx);
+    double[] pos = new double[kpsi + d.rows()];
+    System.arraycopy(psi, 0, pos, 0, kpsi);
+    System.arraycopy(delta, 0, pos, kpsi, delta.length);
+    StoreChainState s = new StoreChainState();
+    s.position = pos;
+    s.kappa = new double[d.products.length];
+    KappaGibbs.draw(rng, d, g, delta, sums, s.kappa);
+    s.invMass = new double[pos.length];
+    for (int k = 0; k < kpsi; k++) {
+      s.invMass[k] = 0.01;
+    }
+    for (int row = 0; row < d.rows(); row++) {
+      // conditional precision of delta is about the units sold plus the prior's precision
+      double prec = d.units[row] + 1.0 / g.sigmaXi2() + g.lambda() * g.lambda() / g.sigmaP2();
+      s.invMass[kpsi + row] = 1.0 / prec;
+    }
+    s.stepSize = 0.1;
+    s.stepAdapt = DualAveraging.init(s.stepSize);
+    s.window = new Welford(pos.length);
+    return s;
+  }
+
+  private double[] invertShares(double[] psi, double[] x, int kx) {
+    int r = d.shoppers;
+    int jCat = x.length / Math.max(1, kx);
+    int jmax = d.maxAssortment();
+    double[] alpha = new double[r];
+    double[] mu = new double[r * jCat];
+    Heterogeneity.shopperTastes(psi, kx, d.nu, r, x, jCat, alpha, mu);
+    double[] v = new double[r * jmax];
+    double[] target = new double[jmax];
+    double[] del = new double[jmax];
+    double[] delta = new double[d.rows()];
+    ShareInversion inv = new ShareInversion(r, jmax);
+    for (int t = 0; t < d.markets(); t++) {
+      int a = d.rowStart[t];
+      int j = d.rowStart[t + 1] - a;
+      long inside = 0;
+      for (int p = 0; p < j; p++) {
+        inside += d.units[a + p];
+      }
+      double m = d.marketSize[t];
+      for (int p = 0; p < j; p++) {
+        target[p] = Math.max(d.units[a + p], 0.5) / m;
+        del[p] = Math.log(target[p]) - Math.log(Math.max(m - inside, 0.5) / m);
+        for (int i = 0; i < r; i++) {
+          v[i * j + p] = mu[i * jCat + d.product[a + p]] - alpha[i] * d.price[a + p];
+        }
+      }
+      inv.invert(r, j, v, target, del, 1e-8, 50);
+      System.arraycopy(del, 0, delta, a, j);
+    }
+    return delta;
+  }
+
+  /**
+   * One local transition (HMC on (psi, delta), then Gibbs on kappa), updating {@code s} in place.
+   *
+   * @param warmup whether this transition adapts the tuning
+   */
+  public Hmc.Info step(RandomGenerator rng, StoreChainState s, LocalParams g, Settings set) {
+    target.condition(g, s.kappa);
+    Hmc.State state = Hmc.State.init(target, s.position);
+    boolean adapting = s.iteration < set.warmup();
+    double eps = adapting ? s.stepAdapt.stepSize() : s.stepSize;
+    // jitter the step size by +-10% so trajectories don't resonate (Neal 2011, section 5.4.2.2)
+    eps *= 0.9 + 0.2 * rng.nextDouble();
+    Hmc.Step st = Hmc.step(rng, state, target, eps, s.invMass, set.leapfrogSteps());
+    s.position = st.state().position();
+    s.logDensity = st.state().logDensity();
+    KappaGibbs.draw(rng, d, g, delta(s), sums, s.kappa);
+    Hmc.Info info = st.info();
+    if (adapting) {
+      adapt(s, info, set);
+    }
+    s.iteration++;
+    s.transitions++;
+    s.acceptSum += info.acceptProb();
+    if (info.accepted()) {
+      s.accepted++;
+    }
+    if (info.divergent()) {
+      s.divergent++;
+    }
+    return info;
+  }
+
+  private void adapt(StoreChainState s, Hmc.Info info, Settings set) {
+    WarmupSchedule sched = WarmupSchedule.of(set.warmup());
+    int i = s.iteration;
+    s.stepAdapt = s.stepAdapt.update(info.acceptProb(), set.targetAccept());
+    if (sched.inSlowWindow(i)) {
+      s.window.add(s.position);
+    }
+    if (sched.endsWindow(i) && s.window.count() > 2) {
+      // regularised towards a small multiple of identity, as Stan does
+      long n = s.window.count();
+      s.window.variance(varBuf);
+      for (int k = 0; k < varBuf.length; k++) {
+        s.invMass[k] = (n / (n + 5.0)) * varBuf[k] + 1e-3 * (5.0 / (n + 5.0));
+      }
+      s.window.reset();
+      s.stepAdapt = DualAveraging.init(s.stepAdapt.stepSize());
+    }
+    if (i == set.warmup() - 1) {
+      s.stepSize = s.stepAdapt.finalStepSize();
+    }
+  }
+
+  /** A view of the delta part of a state's position, copied. */
+  public double[] delta(StoreChainState s) {
+    return java.util.Arrays.copyOfRange(s.position, kpsi, s.position.length);
+  }
+
+  public double[] psi(StoreChainState s) {
+    return java.util.Arrays.copyOfRange(s.position, 0, kpsi);
+  }
+}
