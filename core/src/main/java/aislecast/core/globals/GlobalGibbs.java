@@ -45,6 +45,25 @@ public final class GlobalGibbs {
     return drawSigmaXi2(g, stats.regression(), priors, rng);
   }
 
+  /**
+   * One global sweep with lambda held at {@code lambda} (e.g. 0: prices treated as exogenous).
+   * Same order as {@link #draw}, with the (pi0, pi, lambda) step replaced by (pi0, pi) given lambda
+   * ({@link #priceEquationFixedLambdaConditional}). {@code current} is not modified.
+   */
+  public static Globals drawWithFixedLambda(
+      Globals current, GlobalStats stats, Priors priors, RandomGenerator rng, double lambda) {
+    checkDims(current, stats, priors);
+    Globals g = current.withPriceEquation(current.pi0(), current.pi(), lambda);
+    g = drawGammaPsi(g, stats.hierarchy(), priors, rng);
+    g = drawVPsi(g, stats.hierarchy(), priors, rng);
+    g = drawKappabar(g, stats.intercepts(), priors, rng);
+    g = drawTau2(g, stats.intercepts(), priors, rng);
+    g = drawGamma(g, stats.regression(), priors, rng);
+    g = drawPriceEquationFixedLambda(g, stats.regression(), priors, rng);
+    g = drawSigmaP2(g, stats.regression(), priors, rng);
+    return drawSigmaXi2(g, stats.regression(), priors, rng);
+  }
+
   private static void checkDims(Globals current, GlobalStats stats, Priors priors) {
     Dims d = current.dims();
     if (!d.equals(stats.dims())) {
@@ -294,6 +313,49 @@ public final class GlobalGibbs {
     double[] pi0 = java.util.Arrays.copyOfRange(x, 0, j);
     double[] pi = java.util.Arrays.copyOfRange(x, j, j + kc);
     return g.withPriceEquation(pi0, pi, x[j + kc]);
+  }
+
+  /**
+   * {@code (pi0, pi) | rest} with lambda fixed at {@code g.lambda()}: normal linear regression of
+   * {@code l - lambda xi} on {@code X = [one-hot product, c]} with known variance sigma_p^2 (Gelman
+   * et al., BDA3, chapter 14): precision {@code X'X/sigma_p^2 + diag(1/v0)}, linear term {@code
+   * X'(l - lambda xi)/sigma_p^2 + diag(m0/v0)}, with {@code X'xi = X'y - X'Z gamma}. Order of the
+   * result: pi0 (J), pi (Kc).
+   */
+  public static Gaussian priceEquationFixedLambdaConditional(
+      Globals g, RegressionStats s, Priors priors) {
+    int kz = s.kz();
+    int j = s.products();
+    int m = j + s.kc();
+    double sp2 = g.sigmaP2();
+    double lambda = g.lambda();
+    double[] prec = new double[m * m];
+    double[] lin = new double[m];
+    for (int i = 0; i < m; i++) {
+      for (int i2 = 0; i2 <= i; i2++) {
+        double v = s.ww(kz + i, kz + i2) / sp2;
+        prec[i * m + i2] = v;
+        prec[i2 * m + i] = v;
+      }
+      double xxi = s.wy(kz + i);
+      for (int b = 0; b < kz; b++) {
+        xxi -= s.ww(kz + i, b) * g.gamma(b);
+      }
+      Normal prior = i < j ? priors.pi0() : priors.pi();
+      prec[i * m + i] += 1.0 / prior.var();
+      lin[i] = (s.wl(kz + i) - lambda * xxi) / sp2 + prior.mean() / prior.var();
+    }
+    return new Gaussian(prec, lin, m);
+  }
+
+  /** Draws (pi0, pi) from {@link #priceEquationFixedLambdaConditional}; lambda unchanged. */
+  public static Globals drawPriceEquationFixedLambda(
+      Globals g, RegressionStats s, Priors priors, RandomGenerator rng) {
+    double[] x = priceEquationFixedLambdaConditional(g, s, priors).sample(rng);
+    int j = s.products();
+    double[] pi0 = java.util.Arrays.copyOfRange(x, 0, j);
+    double[] pi = java.util.Arrays.copyOfRange(x, j, j + s.kc());
+    return g.withPriceEquation(pi0, pi, g.lambda());
   }
 
   // ---------------------------------------------------------------- sigma_p2 | rest
