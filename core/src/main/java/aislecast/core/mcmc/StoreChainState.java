@@ -9,9 +9,8 @@ import java.io.Serializable;
 public final class StoreChainState implements Serializable {
   private static final long serialVersionUID = 1L;
 
-  /** [psi, delta]: the HMC position. */
+  /** [psi, kappa, delta]: the HMC position. */
   public double[] position;
-  public double[] kappa;
   public double logDensity;
   public double[] gradient;
   public DualAveraging stepAdapt;
@@ -28,7 +27,6 @@ public final class StoreChainState implements Serializable {
   public StoreChainState copy() {
     StoreChainState s = new StoreChainState();
     s.position = position.clone();
-    s.kappa = kappa.clone();
     s.logDensity = logDensity;
     s.gradient = gradient == null ? null : gradient.clone();
     s.stepAdapt = stepAdapt;

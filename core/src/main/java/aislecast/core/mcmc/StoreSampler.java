@@ -7,8 +7,9 @@ import aislecast.core.model.StoreData;
 import org.apache.commons.math3.random.RandomGenerator;
 
 /**
- * The local block of one store for one chain: an HMC move on {@code (psi_s, delta_s)} with
- * {@code kappa_s} held, then an exact Gibbs draw of {@code kappa_s}. Both leave the store's
+ * The local block of one store for one chain: an HMC move on {@code (psi_s, kappa_s, delta_s)},
+ * then an exact Gibbs draw of {@code kappa_s} given the rest (cheap, and it refreshes the
+ * intercepts between trajectories). Both leave the store's
  * conditional posterior given the globals invariant, so any number of them per sweep keeps the
  * whole scheme exact. During warmup the HMC step size follows dual averaging and the diagonal
  * mass matrix is re-estimated at the end of each slow window ({@link WarmupSchedule}).
@@ -28,13 +29,15 @@ public final class StoreSampler {
   private final int kpsi;
   private final double[] sums;
   private final double[] varBuf;
+  private final double[] kappaBuf;
 
   public StoreSampler(StoreData d, double[] x, int kx) {
     this.d = d;
     this.target = new StoreTarget(d, x, kx);
     this.kpsi = Heterogeneity.dim(kx);
     this.sums = new double[2 * d.products.length];
-    this.varBuf = new double[kpsi + d.rows()];
+    this.varBuf = new double[kpsi + d.products.length + d.rows()];
+    this.kappaBuf = new double[d.products.length];
   }
 
   /**
@@ -48,13 +51,15 @@ public final class StoreSampler {
       psi[k] += 0.1 * rng.nextGaussian();
     }
     double[] delta = invertShares(psi, x, kx);
-    double[] pos = new double[kpsi + d.rows()];
+    int np = d.products.length;
+    double[] pos = new double[kpsi + np + d.rows()];
     System.arraycopy(psi, 0, pos, 0, kpsi);
-    System.arraycopy(delta, 0, pos, kpsi, delta.length);
+    System.arraycopy(delta, 0, pos, kpsi + np, delta.length);
+    double[] kappa = new double[np];
+    KappaGibbs.draw(rng, d, g, delta, sums, kappa);
+    System.arraycopy(kappa, 0, pos, kpsi, np);
     StoreChainState s = new StoreChainState();
     s.position = pos;
-    s.kappa = new double[d.products.length];
-    KappaGibbs.draw(rng, d, g, delta, sums, s.kappa);
     s.invMass = new double[pos.length];
     for (int k = 0; k < kpsi; k++) {
       s.invMass[k] = 0.01;
@@ -62,7 +67,10 @@ public final class StoreSampler {
     for (int row = 0; row < d.rows(); row++) {
       // conditional precision of delta is about the units sold plus the prior's precision
       double prec = d.units[row] + 1.0 / g.sigmaXi2() + g.lambda() * g.lambda() / g.sigmaP2();
-      s.invMass[kpsi + row] = 1.0 / prec;
+      s.invMass[kpsi + np + row] = 1.0 / prec;
+    }
+    for (int l = 0; l < np; l++) {
+      s.invMass[kpsi + l] = g.tau2() / (1 + d.markets() * g.tau2() / g.sigmaXi2());
     }
     s.stepSize = 0.1;
     s.stepAdapt = DualAveraging.init(s.stepSize);
@@ -109,7 +117,7 @@ public final class StoreSampler {
    * @param warmup whether this transition adapts the tuning
    */
   public Hmc.Info step(RandomGenerator rng, StoreChainState s, LocalParams g, Settings set) {
-    target.condition(g, s.kappa);
+    target.condition(g);
     Hmc.State state = Hmc.State.init(target, s.position);
     boolean adapting = s.iteration < set.warmup();
     double eps = adapting ? s.stepAdapt.stepSize() : s.stepSize;
@@ -118,7 +126,8 @@ public final class StoreSampler {
     Hmc.Step st = Hmc.step(rng, state, target, eps, s.invMass, set.leapfrogSteps());
     s.position = st.state().position();
     s.logDensity = st.state().logDensity();
-    KappaGibbs.draw(rng, d, g, delta(s), sums, s.kappa);
+    KappaGibbs.draw(rng, d, g, delta(s), sums, kappaBuf);
+    System.arraycopy(kappaBuf, 0, s.position, kpsi, kappaBuf.length);
     Hmc.Info info = st.info();
     if (adapting) {
       adapt(s, info, set);
@@ -157,9 +166,14 @@ public final class StoreSampler {
     }
   }
 
-  /** A view of the delta part of a state's position, copied. */
+  /** The delta part of a state's position, copied. */
   public double[] delta(StoreChainState s) {
-    return java.util.Arrays.copyOfRange(s.position, kpsi, s.position.length);
+    return java.util.Arrays.copyOfRange(s.position, kpsi + d.products.length, s.position.length);
+  }
+
+  /** The kappa part of a state's position, copied. */
+  public double[] kappa(StoreChainState s) {
+    return java.util.Arrays.copyOfRange(s.position, kpsi, kpsi + d.products.length);
   }
 
   public double[] psi(StoreChainState s) {

@@ -5,12 +5,16 @@ import aislecast.core.model.LocalParams;
 import aislecast.core.model.StoreData;
 
 /**
- * One store's conditional log density of {@code (psi_s, delta_s)} given its intercepts
- * {@code kappa_s} and the globals, with its gradient: the target of the local HMC move.
+ * One store's conditional log density of its locals {@code (psi_s, kappa_s, delta_s)} given the
+ * globals, with its gradient: the target of the local HMC move.
  *
- * <p>Position layout: {@code [psi (Kpsi), delta (one per sales row)]}. Terms (DESIGN section 4,
- * constants dropped): multinomial sales, the price equation and {@code xi} (both through
- * {@code xi = delta - kappa - z' gamma}), and the hierarchical prior of {@code psi}.
+ * <p>Position layout: {@code [psi (Kpsi), kappa (one per stocked product), delta (one per sales
+ * row)]}. Intercepts move together with {@code psi} and {@code delta} because the data leave a
+ * ridge between price sensitivity and intercepts (a higher {@code alpha} with higher intercepts
+ * predicts the same shares at typical prices); a Gibbs step on kappa alone crawls along it.
+ * Terms (DESIGN section 4, constants dropped): multinomial sales, the price equation and
+ * {@code xi} (both through {@code xi = delta - kappa - z' gamma}), and the hierarchical priors of
+ * {@code kappa} and {@code psi}.
  *
  * <p>Gradient of the multinomial part: with {@code w_j = q_j / s_j}, {@code w_0 = q_0 / s_0},
  * {@code dL/dv_rj = (1/R) P_rj (w_j - sum_k w_k P_rk - w_0 P_r0)}; {@code dL/d delta_j = sum_r
@@ -26,8 +30,9 @@ public final class StoreTarget implements Target {
   private final int kx;
   private final int kpsi;
   private final int jCat;
+  private final int nk;
+  private final int off;
   private LocalParams g;
-  private double[] kappa;
 
   private final double[] alpha;
   private final double[] mu;
@@ -47,6 +52,8 @@ public final class StoreTarget implements Target {
     this.kx = kx;
     this.kpsi = Heterogeneity.dim(kx);
     this.jCat = x.length / Math.max(kx, 1);
+    this.nk = d.products.length;
+    this.off = kpsi + nk;
     int r = d.shoppers;
     int jmax = d.maxAssortment();
     this.alpha = new double[r];
@@ -62,11 +69,15 @@ public final class StoreTarget implements Target {
     this.tmp = new double[kpsi];
   }
 
-  /** Sets the conditioning values; arrays are read, not copied. */
-  public void condition(LocalParams globals, double[] kappaS) {
+  /** Sets the conditioning globals (read, not copied). */
+  public void condition(LocalParams globals) {
     this.g = globals;
-    this.kappa = kappaS;
     g.psiMean(d.demographics, psiMean);
+  }
+
+  /** Offset of the first delta in the position. */
+  public int deltaOffset() {
+    return off;
   }
 
   public StoreData data() {
@@ -75,13 +86,14 @@ public final class StoreTarget implements Target {
 
   @Override
   public int dimension() {
-    return kpsi + d.rows();
+    return off + d.rows();
   }
 
   @Override
   public double logDensityAndGradient(double[] pos, double[] grad) {
     java.util.Arrays.fill(grad, 0, dimension(), 0.0);
     double lp = psiPrior(pos, grad);
+    lp += kappaPrior(pos, grad);
     lp += sales(pos, grad);
     lp += rows(pos, grad);
     return lp;
@@ -111,7 +123,19 @@ public final class StoreTarget implements Target {
     return -0.5 * quad;
   }
 
-  /** Price equation and xi terms over every row; gradient w.r.t. delta. */
+  /** log N(kappa_sj | kappabar_j, tau^2) without constants. */
+  private double kappaPrior(double[] pos, double[] grad) {
+    double lp = 0;
+    double tau2 = g.tau2();
+    for (int l = 0; l < nk; l++) {
+      double e = pos[kpsi + l] - g.kappabar()[d.products[l]];
+      lp -= 0.5 * e * e / tau2;
+      grad[kpsi + l] -= e / tau2;
+    }
+    return lp;
+  }
+
+  /** Price equation and xi terms over every row; gradient w.r.t. delta and kappa. */
   private double rows(double[] pos, double[] grad) {
     double sx2 = g.sigmaXi2();
     double sp2 = g.sigmaP2();
@@ -121,7 +145,7 @@ public final class StoreTarget implements Target {
     double[] pi0 = g.pi0();
     double lp = 0;
     for (int row = 0; row < d.rows(); row++) {
-      double xi = pos[kpsi + row] - kappa[d.local[row]];
+      double xi = pos[off + row] - pos[kpsi + d.local[row]];
       for (int k = 0; k < d.kz; k++) {
         xi -= d.z[row * d.kz + k] * gam[k];
       }
@@ -131,7 +155,9 @@ public final class StoreTarget implements Target {
       }
       double e = d.logPrice[row] - m - lambda * xi;
       lp += -0.5 * xi * xi / sx2 - 0.5 * e * e / sp2;
-      grad[kpsi + row] += -xi / sx2 + lambda * e / sp2;
+      double gxi = -xi / sx2 + lambda * e / sp2;
+      grad[off + row] += gxi;
+      grad[kpsi + d.local[row]] -= gxi;
     }
     return lp;
   }
@@ -156,7 +182,7 @@ public final class StoreTarget implements Target {
         int catRow = i * jCat;
         double m = 0.0;
         for (int p = 0; p < j; p++) {
-          double u = pos[kpsi + a + p] + mu[catRow + d.product[a + p]] - alpha[i] * d.price[a + p];
+          double u = pos[off + a + p] + mu[catRow + d.product[a + p]] - alpha[i] * d.price[a + p];
           v[row + p] = u;
           if (u > m) {
             m = u;
@@ -199,7 +225,7 @@ public final class StoreTarget implements Target {
         int tb = i * Math.max(1, kx);
         for (int p = 0; p < j; p++) {
           double gv = invR * probs[row + p] * (w[p] - pw);
-          grad[kpsi + a + p] += gv;
+          grad[off + a + p] += gv;
           gp += gv * d.price[a + p];
           int prod = d.product[a + p];
           for (int k = 0; k < kx; k++) {

@@ -18,8 +18,7 @@ class StoreTargetTest {
     var f = ReferenceFixtures.load();
     for (StoreData d : f.stores()) {
       StoreTarget target = new StoreTarget(d, f.x(), f.kx());
-      double[] kappa = f.kappa(d);
-      target.condition(f.params(), kappa);
+      target.condition(f.params());
       double[] a = f.position(d);
       double[] b = a.clone();
       for (int i = 0; i < b.length; i++) {
@@ -28,18 +27,20 @@ class StoreTargetTest {
       double[] grad = new double[a.length];
       double la = target.logDensityAndGradient(a, grad);
       double lb = target.logDensityAndGradient(b, grad);
-      double ra = full(d, f, a, kappa);
-      double rb = full(d, f, b, kappa);
+      double ra = full(d, f, a);
+      double rb = full(d, f, b);
       assertEquals(rb - ra, lb - la, 1e-8, d.storeId);
     }
   }
 
-  private static double full(StoreData d, ReferenceFixtures f, double[] pos, double[] kappa) {
+  private static double full(StoreData d, ReferenceFixtures f, double[] pos) {
     int kpsi = f.params().kpsi();
+    int np = d.products.length;
     double[] psi = java.util.Arrays.copyOfRange(pos, 0, kpsi);
-    double[] delta = java.util.Arrays.copyOfRange(pos, kpsi, pos.length);
+    double[] kappa = java.util.Arrays.copyOfRange(pos, kpsi, kpsi + np);
+    double[] delta = java.util.Arrays.copyOfRange(pos, kpsi + np, pos.length);
     StoreDensity.Terms t = StoreDensity.terms(d, f.x(), f.kx(), f.params(), psi, kappa, delta);
-    return t.sales() + t.price() + t.xi() + t.psi();
+    return t.sales() + t.price() + t.xi() + t.kappa() + t.psi();
   }
 
   @Test
@@ -48,7 +49,7 @@ class StoreTargetTest {
     var f = ReferenceFixtures.load();
     for (StoreData d : f.stores().subList(0, 2)) {
       StoreTarget target = new StoreTarget(d, f.x(), f.kx());
-      target.condition(f.params(), f.kappa(d));
+      target.condition(f.params());
       double[] pos = f.position(d);
       double[] grad = new double[pos.length];
       double[] scratch = new double[pos.length];

@@ -48,13 +48,15 @@ public final class ReferenceFixtures {
     return point.delta.get(d.storeId).clone();
   }
 
-  /** [psi, delta] at the true point. */
+  /** [psi, kappa, delta] at the true point. */
   public double[] position(StoreData d) {
     double[] psi = psi(d);
+    double[] kappa = kappa(d);
     double[] delta = delta(d);
-    double[] pos = new double[psi.length + delta.length];
+    double[] pos = new double[psi.length + kappa.length + delta.length];
     System.arraycopy(psi, 0, pos, 0, psi.length);
-    System.arraycopy(delta, 0, pos, psi.length, delta.length);
+    System.arraycopy(kappa, 0, pos, psi.length, kappa.length);
+    System.arraycopy(delta, 0, pos, psi.length + kappa.length, delta.length);
     return pos;
   }
 }

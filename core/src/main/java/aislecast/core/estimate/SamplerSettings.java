@@ -1,0 +1,56 @@
+package aislecast.core.estimate;
+
+import java.io.Serializable;
+
+/**
+ * Settings of one estimation run's sampler, validated together, with documented defaults.
+ *
+ * @param chains number of chains sharing each sweep (default 4)
+ * @param warmupSweeps sweeps whose draws are discarded while the local samplers adapt (300)
+ * @param samplingSweeps sweeps kept as posterior draws (500)
+ * @param localSteps local transitions per store per sweep (default 2; the globals are fixed
+ *     within a sweep, so several transitions stay exact)
+ * @param leapfrogSteps leapfrog steps per local HMC transition (16)
+ * @param targetAccept HMC acceptance the step size adapts to (0.8)
+ * @param seed run seed: every random stream is keyed by (seed, chain, store, sweep)
+ * @param fixLambdaZero fit without price endogeneity (lambda held at 0) for comparisons
+ */
+public record SamplerSettings(
+    int chains,
+    int warmupSweeps,
+    int samplingSweeps,
+    int localSteps,
+    int leapfrogSteps,
+    double targetAccept,
+    long seed,
+    boolean fixLambdaZero)
+    implements Serializable {
+
+  public SamplerSettings {
+    require(chains >= 1, "chains must be >= 1, got " + chains);
+    require(warmupSweeps >= 0, "warmup sweeps must be >= 0");
+    require(samplingSweeps >= 4, "sampling sweeps must be >= 4");
+    require(localSteps >= 1, "local steps must be >= 1");
+    require(leapfrogSteps >= 1, "leapfrog steps must be >= 1");
+    require(targetAccept > 0 && targetAccept < 1, "target acceptance must be in (0, 1)");
+  }
+
+  public static SamplerSettings defaults(long seed) {
+    return new SamplerSettings(4, 300, 500, 2, 16, 0.8, seed, false);
+  }
+
+  public int totalSweeps() {
+    return warmupSweeps + samplingSweeps;
+  }
+
+  /** Local transitions of warmup (adaptation) per store and chain. */
+  public int localWarmup() {
+    return warmupSweeps * localSteps;
+  }
+
+  private static void require(boolean ok, String message) {
+    if (!ok) {
+      throw new IllegalArgumentException(message);
+    }
+  }
+}
