@@ -1,7 +1,10 @@
 package aislecast.jobs.cli;
 
+import java.util.concurrent.Callable;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
+import picocli.CommandLine.Model.CommandSpec;
+import picocli.CommandLine.Spec;
 
 /** Entry point of the {@code aislecast} command line. */
 @Command(
@@ -9,15 +12,32 @@ import picocli.CommandLine.Command;
     mixinStandardHelpOptions = true,
     version = "aislecast 0.1.0",
     description = "Store-level demand estimation and what-if scenarios from store-week sales.",
-    subcommands = {GenerateCommand.class, CommandLine.HelpCommand.class})
-public final class Main implements Runnable {
+    subcommands = {
+      ValidateCommand.class,
+      GenerateCommand.class,
+      DemoCommand.class,
+      CommandLine.HelpCommand.class
+    })
+public final class Main implements Callable<Integer> {
 
+  @Spec CommandSpec spec;
+
+  /** Without a subcommand: usage on stderr and exit 2 (a usage error). */
   @Override
-  public void run() {
-    new CommandLine(this).usage(System.out);
+  public Integer call() {
+    spec.commandLine().usage(spec.commandLine().getErr());
+    return 2;
+  }
+
+  /** The command line with the project's error handling installed. */
+  public static CommandLine commandLine() {
+    ExitCodeMapper mapper = new ExitCodeMapper();
+    return new CommandLine(new Main())
+        .setExecutionExceptionHandler(mapper)
+        .setExitCodeExceptionMapper(mapper);
   }
 
   public static void main(String[] args) {
-    System.exit(new CommandLine(new Main()).execute(args));
+    System.exit(commandLine().execute(args));
   }
 }
