@@ -226,6 +226,30 @@ class ShareKernelTest {
     assertClose(expected, sf[1], 1e-13, 0.0, "factored");
     assertClose(expected, pf[1], 1e-13, 0.0, "factored probability");
     assertEquals(s0d, s0f, 1e-15);
+
+    // the same shopper among ordinary ones, inside the four-shopper blocks and in the remainder
+    int r = 9;
+    double[] vMany = new double[r * 2];
+    for (int i = 0; i < r; i++) {
+      boolean odd = i == 2 || i == 8;
+      vMany[i * 2] = odd ? -1000.0 : -600.0 + 0.1 * i;
+      vMany[i * 2 + 1] = odd ? 200.0 : 599.0 - 0.2 * i;
+    }
+    double[] sdMany = new double[2];
+    double[] sfMany = new double[2];
+    double[] pdMany = new double[r * 2];
+    double[] pfMany = new double[r * 2];
+    double s0dMany = ShareKernel.shares(r, 2, delta, vMany, sdMany, pdMany);
+    FactoredShares fMany = new FactoredShares(r, 2);
+    fMany.prepare(r, 2, vMany);
+    double s0fMany = fMany.shares(delta, sfMany, pfMany);
+    assertClose(s0dMany, s0fMany, 1e-13, 0.0, "outside, mixed shoppers");
+    for (int p = 0; p < 2; p++) {
+      assertClose(sdMany[p], sfMany[p], 1e-12, 0.0, "share " + p + ", mixed shoppers");
+    }
+    for (int q = 0; q < r * 2; q++) {
+      assertClose(pdMany[q], pfMany[q], 1e-12, 0.0, "probability " + q + ", mixed shoppers");
+    }
   }
 
   @Test
