@@ -207,6 +207,24 @@ class ShareKernelTest {
   }
 
   @Test
+  void oneFactoredInstanceServesMarketsOfDifferentSizes() {
+    FactoredShares f = new FactoredShares(200, 30);
+    int[][] sizes = {{200, 30}, {7, 3}, {50, 11}, {1, 1}, {200, 30}};
+    for (int c = 0; c < sizes.length; c++) {
+      TestMarket m = heterogeneous(40L + c, sizes[c][0], sizes[c][1]);
+      double[] sd = new double[m.j];
+      double[] sf = new double[m.j];
+      double s0d = ShareKernel.shares(m.r, m.j, m.delta, m.v, sd, null);
+      f.prepare(m.r, m.j, m.v);
+      double s0f = f.shares(m.delta, sf, null);
+      assertClose(s0d, s0f, 1e-12, 0.0, "outside, size case " + c);
+      for (int p = 0; p < m.j; p++) {
+        assertClose(sd[p], sf[p], 1e-12, 0.0, "share " + p + ", size case " + c);
+      }
+    }
+  }
+
+  @Test
   void factoredFallsBackWhenEveryFactoredTermUnderflows() {
     // delta = (600, -600), v = (-1000, 200): both utilities are -400, but the factored terms are
     // exp(-1200) each (the best delta and the best v belong to different products).
