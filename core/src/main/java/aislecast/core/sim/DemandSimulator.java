@@ -70,7 +70,6 @@ public final class DemandSimulator {
     double[] typicalPrice = new double[nJ];
     double[] baseCost = new double[nJ];
     double[] logOdds = new double[nJ];
-    int[] flavour = new int[nJ];
     for (int j = 0; j < nJ; j++) {
       SplitMix64 rng = Streams.stream(seed, PRODUCTS, j);
       productIds[j] = DemoNames.productId(j, nJ);
@@ -78,7 +77,6 @@ public final class DemandSimulator {
       base[j * 3] = rng.nextDouble() < SUGAR_FREE_SHARE ? 1 : 0;
       base[j * 3 + 1] = CAFFEINE_MG[rng.nextInt(CAFFEINE_MG.length)];
       base[j * 3 + 2] = VOLUME_L[rng.nextInt(VOLUME_L.length)];
-      flavour[j] = rng.nextInt(64);
       typicalPrice[j] = uniform(rng, st.priceMin(), st.priceMax());
       baseCost[j] = typicalPrice[j] * uniform(rng, st.costShareMin(), st.costShareMax());
       logOdds[j] = uniform(rng, st.logOddsMin(), st.logOddsMax());
@@ -87,9 +85,16 @@ public final class DemandSimulator {
       }
     }
     ensureVaries(base, nJ);
+    java.util.Set<String> usedNames = new java.util.HashSet<>();
     for (int j = 0; j < nJ; j++) {
-      productNames[j] = DemoNames.brand(owner[j]) + " " + DemoNames.flavour(flavour[j])
+      // consecutive flavours within an owner's range keep names distinct; the suffix is a backstop
+      String name = DemoNames.brand(owner[j]) + " " + DemoNames.flavour(j / st.owners() + 3 * owner[j])
           + (base[j * 3] == 1 ? " Zero" : "") + " " + fixed(base[j * 3 + 2], 2) + " l";
+      String unique = name;
+      for (int n = 2; !usedNames.add(unique); n++) {
+        unique = name + " #" + n;
+      }
+      productNames[j] = unique;
     }
     String[] attributeNames = new String[kx];
     int[] attributeDecimals = new int[kx];

@@ -37,7 +37,7 @@ import java.util.List;
  * @param weeks number of weeks
  * @param products number of products (>= 2, so attributes can be standardised)
  * @param owners number of owners (firms); owner 0 is the user's own portfolio
- * @param regions number of regions
+ * @param regions number of regions; store s is in region s mod regions
  * @param attributes Kx, numeric product attributes in the model (sugar_free, caffeine_mg,
  *     volume_l, then extra ones)
  * @param draws R, shopper draws per store
@@ -188,7 +188,7 @@ public record SimSettings(
     range(out, "weeks", weeks, 1, 10_000);
     range(out, "products", products, 2, 10_000);
     range(out, "owners", owners, 1, Math.max(1, products));
-    range(out, "regions", regions, 1, Math.max(1, stores));
+    range(out, "regions", regions, 1, 1000); // more regions than stores: some stay empty
     range(out, "attributes", attributes, 0, 20);
     range(out, "draws", draws, 1, 100_000);
     range(out, "shoppersMin", shoppersMin, 1, Integer.MAX_VALUE);
