@@ -27,10 +27,13 @@ public final class ShareKernel {
   public static double shares(
       int r, int j, double[] delta, double[] v, double[] sharesOut, double[] probsOut) {
     java.util.Arrays.fill(sharesOut, 0, j, 0.0);
+    // one exp per element: kept in the caller's probability row, or in a per-thread row
+    double[] buf = probsOut != null ? probsOut : scratchRow(j);
     double outside = 0.0;
     double invR = 1.0 / r;
     for (int i = 0; i < r; i++) {
       int row = i * j;
+      int b = probsOut != null ? row : 0;
       double m = 0.0; // the outside option's utility bounds the max from below
       for (int p = 0; p < j; p++) {
         double u = delta[p] + v[row + p];
@@ -41,19 +44,30 @@ public final class ShareKernel {
       double e0 = Math.exp(-m);
       double den = e0;
       for (int p = 0; p < j; p++) {
-        den += Math.exp(delta[p] + v[row + p] - m);
+        double ex = Math.exp(delta[p] + v[row + p] - m);
+        buf[b + p] = ex;
+        den += ex;
       }
       double inv = 1.0 / den;
       for (int p = 0; p < j; p++) {
-        double prob = Math.exp(delta[p] + v[row + p] - m) * inv;
+        double prob = buf[b + p] * inv;
+        buf[b + p] = prob;
         sharesOut[p] += prob * invR;
-        if (probsOut != null) {
-          probsOut[row + p] = prob;
-        }
       }
       outside += e0 * inv * invR;
     }
     return outside;
+  }
+
+  private static final ThreadLocal<double[]> SCRATCH = ThreadLocal.withInitial(() -> new double[64]);
+
+  private static double[] scratchRow(int j) {
+    double[] row = SCRATCH.get();
+    if (row.length < j) {
+      row = new double[j];
+      SCRATCH.set(row);
+    }
+    return row;
   }
 
   /**
