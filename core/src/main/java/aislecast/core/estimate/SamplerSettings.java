@@ -14,6 +14,8 @@ import java.io.Serializable;
  * @param targetAccept HMC acceptance the step size adapts to (0.8)
  * @param seed run seed: every random stream is keyed by (seed, chain, store, sweep)
  * @param fixLambdaZero fit without price endogeneity (lambda held at 0) for comparisons
+ * @param ridgeMove whether each sweep proposes the joint price-sensitivity shift of
+ *     {@link RidgeMove} (default true; off only to measure what it buys)
  */
 public record SamplerSettings(
     int chains,
@@ -23,7 +25,8 @@ public record SamplerSettings(
     int leapfrogSteps,
     double targetAccept,
     long seed,
-    boolean fixLambdaZero)
+    boolean fixLambdaZero,
+    boolean ridgeMove)
     implements Serializable {
 
   public SamplerSettings {
@@ -36,7 +39,7 @@ public record SamplerSettings(
   }
 
   public static SamplerSettings defaults(long seed) {
-    return new SamplerSettings(4, 300, 500, 2, 16, 0.8, seed, false);
+    return new SamplerSettings(4, 300, 500, 2, 16, 0.8, seed, false, true);
   }
 
   public int totalSweeps() {

@@ -5,6 +5,7 @@ import aislecast.core.globals.GlobalGibbs;
 import aislecast.core.globals.GlobalStats;
 import aislecast.core.globals.Globals;
 import aislecast.core.globals.Priors;
+import aislecast.core.mcmc.Hmc;
 import aislecast.core.mcmc.StoreChainState;
 import aislecast.core.mcmc.StoreSampler;
 import aislecast.core.model.LocalParams;
@@ -14,12 +15,20 @@ import aislecast.core.rng.Streams;
 
 /**
  * The pieces of one sweep (DESIGN section 5), as pure functions that a Spark job or an in-process
- * loop composes: locals of a store given the globals of every chain, returning the store's
- * sufficient statistics per chain; then the globals of each chain from the merged statistics.
+ * loop composes in the same order:
  *
- * <p>Streams: store work for (chain c, store s, sweep k) draws from key (seed, c, s, k, 0);
- * the driver's global draw for (chain c, sweep k) from (seed, c, -1, k, 1); initialisation from
- * sweep -1. So a retried task, a different partitioning or a resumed run repeats every number.
+ * <ol>
+ *   <li>driver: {@link #input} builds the broadcast for sweep k from the {@link DriverState};
+ *   <li>every store: {@link #sweepStore} applies the ridge shift accepted last sweep, runs its
+ *       local transitions for every chain, and returns {@link SweepStats} (sufficient statistics
+ *       of its locals as they are and under this sweep's proposed ridge shift);
+ *   <li>driver: {@link #driverStep} takes the merged statistics, accepts or rejects each chain's
+ *       ridge shift, and draws the globals from their conditionals.
+ * </ol>
+ *
+ * <p>Streams: store work for (chain c, store s, sweep k) draws from key (seed, c, s, k, 0); the
+ * driver's draws for (chain c, sweep k) from (seed, c, -1, k, 1); initialisation uses sweep -1.
+ * So a retried task, another partitioning or a resumed run repeats every number exactly.
  */
 public final class Sweeps {
   private Sweeps() {}
@@ -54,73 +63,132 @@ public final class Sweeps {
     return new StoreBlock(d, chains, Heterogeneity.dim(kx), set.samplingSweeps());
   }
 
+  /** The broadcast for the driver state's next sweep: globals, shifts to apply and to propose. */
+  public static SweepInput input(DriverState st, SamplerSettings set) {
+    int sweep = st.nextSweep();
+    double[] propose = new double[st.chains()];
+    if (set.ridgeMove()) {
+      for (int c = 0; c < propose.length; c++) {
+        propose[c] = st.ridgeScale()[c] * Streams.stream(set.seed(), c, -1, sweep, 3)
+            .nextGaussian();
+      }
+    }
+    return new SweepInput(localParams(st.globals()), st.pendingShift().clone(), propose);
+  }
+
   /**
-   * Runs sweep {@code sweep} for one store: {@code localSteps} local transitions per chain, keeps
-   * psi if the sweep is past warmup, and adds the store's statistics to {@code stats[chain]}.
-   * The block is updated in place (callers copy first when the old one must survive).
+   * Sweep {@code sweep} for one store, updating the block in place (callers copy first when the
+   * old block must survive), and adding its statistics into {@code out}.
    */
-  public static void updateStore(StoreBlock b, StoreSampler sampler, LocalParams[] params,
-      SamplerSettings set, int sweep, GlobalStats[] stats) {
+  public static void sweepStore(StoreBlock b, StoreSampler sampler, double[] x, int kx,
+      SweepInput in, SamplerSettings set, int sweep, SweepStats out) {
     StoreData d = b.data;
-    int kpsi = params[0].kpsi();
+    int kpsi = Heterogeneity.dim(kx);
     StoreSampler.Settings local =
         new StoreSampler.Settings(set.localWarmup(), set.leapfrogSteps(), set.targetAccept());
     boolean keep = sweep >= set.warmupSweeps();
     for (int c = 0; c < b.chains.length; c++) {
       StoreChainState s = b.chains[c];
+      RidgeMove.apply(d, x, kx, s.position, in.applyShift()[c]);
       SplitMix64 rng = storeStream(set.seed(), c, d.storeIndex, sweep);
       for (int k = 0; k < set.localSteps(); k++) {
-        sampler.step(rng, s, params[c], local);
+        Hmc.Info info = sampler.step(rng, s, in.params()[c], local);
+        out.acceptSum[c] += info.acceptProb();
+        out.transitions[c]++;
+        if (info.divergent()) {
+          out.divergent[c]++;
+        }
       }
       if (keep) {
         System.arraycopy(s.position, 0, b.psiDraws[c], b.keptDraws * kpsi, kpsi);
       }
-      addStatistics(d, s, kpsi, stats[c]);
+      addStatistics(d, s.position, kpsi, out.current[c]);
+      double shift = in.proposeShift()[c];
+      if (shift != 0.0) {
+        double[] moved = s.position.clone();
+        RidgeMove.apply(d, x, kx, moved, shift);
+        out.salesDelta[c] += sampler.salesLogLikelihood(moved)
+            - sampler.salesLogLikelihood(s.position);
+        addStatistics(d, moved, kpsi, out.proposed[c]);
+      }
     }
     if (keep) {
       b.keptDraws++;
     }
   }
 
-  /** The store's contribution to the global conditionals at its current locals. */
-  public static void addStatistics(StoreData d, StoreChainState s, int kpsi, GlobalStats out) {
-    out.addStore(d.demographics, java.util.Arrays.copyOfRange(s.position, 0, kpsi));
+  /** The store's contribution to the global conditionals at a local position. */
+  public static void addStatistics(StoreData d, double[] position, int kpsi, GlobalStats out) {
+    out.addStore(d.demographics, java.util.Arrays.copyOfRange(position, 0, kpsi));
     int np = d.products.length;
     for (int l = 0; l < np; l++) {
-      out.addIntercept(d.products[l], s.position[kpsi + l]);
+      out.addIntercept(d.products[l], position[kpsi + l]);
     }
     for (int row = 0; row < d.rows(); row++) {
-      double y = s.position[kpsi + np + row] - s.position[kpsi + d.local[row]];
+      double y = position[kpsi + np + row] - position[kpsi + d.local[row]];
       out.addRow(d.z, row * d.kz, d.product[row], d.c, row * d.kc, y, d.logPrice[row]);
     }
   }
 
-  /** Draws every chain's globals from its merged statistics (driver side). */
-  public static Globals[] drawGlobals(Globals[] current, GlobalStats[] merged, Priors priors,
-      SamplerSettings set, int sweep) {
-    Globals[] next = new Globals[current.length];
-    for (int c = 0; c < current.length; c++) {
+  /**
+   * The driver's half of a sweep: per chain, the ridge shift's Metropolis-Hastings decision
+   * (collapsed over Gamma, kappabar and the price equation's coefficients, see {@link
+   * RidgeMove}), then the globals drawn from the statistics of the chosen locals, collapsed
+   * block first.
+   */
+  public static DriverState driverStep(DriverState st, SweepStats merged, SweepInput in,
+      Priors priors, SamplerSettings set) {
+    int sweep = st.nextSweep();
+    int chains = st.chains();
+    Globals[] next = new Globals[chains];
+    double[] scale = st.ridgeScale().clone();
+    double[] pending = new double[chains];
+    long[] acc = st.ridgeAccepted().clone();
+    long[] prop = st.ridgeProposed().clone();
+    boolean fixed = set.fixLambdaZero();
+    for (int c = 0; c < chains; c++) {
+      Globals g = st.globals()[c];
       SplitMix64 rng = driverStream(set.seed(), c, sweep);
-      next[c] = set.fixLambdaZero()
-          ? GlobalGibbs.drawWithFixedLambda(current[c], merged[c], priors, rng, 0.0)
-          : GlobalGibbs.draw(current[c], merged[c], priors, rng);
+      GlobalStats chosen = merged.current[c];
+      double shift = in.proposeShift()[c];
+      if (shift != 0.0) {
+        double logRatio = merged.salesDelta[c]
+            + RidgeMove.collapsedLogDensity(g, merged.proposed[c], priors, fixed)
+            - RidgeMove.collapsedLogDensity(g, merged.current[c], priors, fixed);
+        double a = Double.isNaN(logRatio) ? 0.0 : Math.min(1.0, Math.exp(logRatio));
+        boolean accept = rng.nextDouble() < a;
+        prop[c]++;
+        if (accept) {
+          acc[c]++;
+          pending[c] = shift;
+          chosen = merged.proposed[c];
+        }
+        if (sweep < set.warmupSweeps()) {
+          // Robbins-Monro on the log scale towards 40% acceptance (common practice for a
+          // one-dimensional random-walk proposal)
+          scale[c] *= Math.exp((a - 0.4) / Math.sqrt(sweep + 1.0));
+        }
+      }
+      next[c] = drawGlobals(g, chosen, priors, fixed, rng);
     }
-    return next;
+    return new DriverState(next, scale, pending, acc, prop, sweep + 1);
   }
 
-  public static GlobalStats[] emptyStats(Globals[] globals) {
-    GlobalStats[] s = new GlobalStats[globals.length];
-    for (int c = 0; c < s.length; c++) {
-      s[c] = new GlobalStats(globals[c].dims());
-    }
-    return s;
-  }
-
-  /** Element-wise merge of per-chain statistics (for treeAggregate's combine). */
-  public static GlobalStats[] merge(GlobalStats[] a, GlobalStats[] b) {
-    for (int c = 0; c < a.length; c++) {
-      a[c].merge(b[c]);
-    }
-    return a;
+  /**
+   * Globals from their conditionals, the ridge move's collapsed block (Gamma | V, kappabar |
+   * tau2, price-equation coefficients | rest) first, then V_psi, tau2, gamma, sigma_p2, sigma_xi2.
+   */
+  static Globals drawGlobals(Globals g, GlobalStats s, Priors priors, boolean fixedLambda,
+      SplitMix64 rng) {
+    g = GlobalGibbs.drawGammaPsi(g, s.hierarchy(), priors, rng);
+    g = GlobalGibbs.drawKappabar(g, s.intercepts(), priors, rng);
+    g = fixedLambda
+        ? GlobalGibbs.drawPriceEquationFixedLambda(g, s.regression(), priors, rng)
+        : GlobalGibbs.drawPriceEquation(g, s.regression(), priors, rng);
+    g = GlobalGibbs.drawVPsi(g, s.hierarchy(), priors, rng);
+    g = GlobalGibbs.drawTau2(g, s.intercepts(), priors, rng);
+    g = GlobalGibbs.drawGamma(g, s.regression(), priors, rng);
+    g = GlobalGibbs.drawSigmaP2(g, s.regression(), priors, rng);
+    return GlobalGibbs.drawSigmaXi2(g, s.regression(), priors, rng);
   }
 }

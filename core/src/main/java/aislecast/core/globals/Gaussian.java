@@ -50,6 +50,24 @@ public record Gaussian(double[] precision, double[] linear, int dim) implements 
     return m;
   }
 
+  /** {@code log det Q}, from the Cholesky factor. */
+  public double logDetPrecision() {
+    double[] l = factor();
+    double s = 0;
+    for (int i = 0; i < dim; i++) {
+      s += 2 * Math.log(l[i * dim + i]);
+    }
+    return s;
+  }
+
+  /**
+   * Log density at the mean: {@code -dim/2 log(2 pi) + log det(Q) / 2}; the last term of Chib's
+   * identity (log marginal = log likelihood + log prior - log posterior, at any point).
+   */
+  public double logDensityAtMean() {
+    return -0.5 * dim * Math.log(2 * Math.PI) + 0.5 * logDetPrecision();
+  }
+
   /** The covariance {@code Q^-1}; new dim x dim array. */
   public double[] covariance() {
     return Linalg.inverseFromCholesky(factor(), dim);

@@ -30,6 +30,7 @@ public final class StoreSampler {
   private final double[] sums;
   private final double[] varBuf;
   private final double[] kappaBuf;
+  private double[] scratch;
 
   public StoreSampler(StoreData d, double[] x, int kx) {
     this.d = d;
@@ -164,6 +165,14 @@ public final class StoreSampler {
     if (i == set.warmup() - 1) {
       s.stepSize = s.stepAdapt.finalStepSize();
     }
+  }
+
+  /** The sales log likelihood at a position (conditioning globals are not used). */
+  public double salesLogLikelihood(double[] position) {
+    if (scratch == null) {
+      scratch = new double[position.length];
+    }
+    return target.salesLogLikelihood(position, scratch);
   }
 
   /** The delta part of a state's position, copied. */

@@ -75,6 +75,15 @@ public final class StoreTarget implements Target {
     g.psiMean(d.demographics, psiMean);
   }
 
+  /**
+   * The multinomial sales log likelihood alone (without the multinomial coefficient) at a
+   * position; {@code scratch} (length {@link #dimension()}) receives its gradient.
+   */
+  public double salesLogLikelihood(double[] pos, double[] scratch) {
+    java.util.Arrays.fill(scratch, 0, dimension(), 0.0);
+    return sales(pos, scratch);
+  }
+
   /** Offset of the first delta in the position. */
   public int deltaOffset() {
     return off;

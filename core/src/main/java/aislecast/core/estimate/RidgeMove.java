@@ -1,0 +1,175 @@
+package aislecast.core.estimate;
+
+import aislecast.core.demand.Heterogeneity;
+import aislecast.core.globals.Gaussian;
+import aislecast.core.globals.GlobalGibbs;
+import aislecast.core.globals.GlobalStats;
+import aislecast.core.globals.Globals;
+import aislecast.core.globals.HierarchyStats;
+import aislecast.core.globals.InterceptStats;
+import aislecast.core.globals.Normal;
+import aislecast.core.globals.Priors;
+import aislecast.core.globals.RegressionStats;
+import aislecast.core.model.StoreData;
+
+/**
+ * A joint move along the slowest direction of the posterior: every store's log price sensitivity
+ * {@code a_s} shifts by the same {@code c}, each market's mean utilities follow so that
+ * {@code eta_jt = delta_jt + log (1/R) sum_r exp(v_rjt)} stays fixed (predicted shares barely
+ * move), and each store-product intercept follows its products' mean utility change (so
+ * {@code xi} barely moves). Without it, a Gibbs sweep between globals and locals crawls: given
+ * the locals the price equation pins {@code lambda} and the intercept means far tighter than
+ * their posterior spread, and given those the locals are pinned too.
+ *
+ * <p>Exactness: for a fixed {@code c} the map is a shift of {@code a} and of {@code kappa} by
+ * amounts that depend only on other coordinates, and {@code delta -> eta} is a shift depending
+ * only on {@code psi}: its Jacobian is 1, and the map for {@code -c} inverts the one for
+ * {@code c}; with {@code c ~ N(0, s^2)} the Metropolis-Hastings ratio is the posterior ratio.
+ * That ratio is taken with {@code Gamma}, {@code kappabar} and the price equation's coefficients
+ * integrated out (each Gaussian given the other globals, so the integral is exact by Chib's
+ * identity), and those are then drawn from their conditionals given the chosen locals: a
+ * partially collapsed Gibbs step in the sense of van Dyk and Park (2008, JASA 103), valid because
+ * the collapsed block is redrawn right after the collapsed move.
+ */
+public final class RidgeMove {
+  private RidgeMove() {}
+
+  /**
+   * Applies the shift to a local position {@code [psi, kappa, delta]} in place.
+   */
+  public static void apply(StoreData d, double[] x, int kx, double[] position, double c) {
+    if (c == 0.0) {
+      return;
+    }
+    int kpsi = Heterogeneity.dim(kx);
+    int np = d.products.length;
+    int off = kpsi + np;
+    int r = d.shoppers;
+    int jCat = x.length / Math.max(1, kx);
+    double[] alpha = new double[r];
+    double[] mu = new double[r * jCat];
+    Heterogeneity.shopperTastes(position, kx, d.nu, r, x, jCat, alpha, mu);
+    double scale = Math.exp(c);
+    double[] dsum = new double[np];
+    double[] dcount = new double[np];
+    for (int row = 0; row < d.rows(); row++) {
+      int p = d.product[row];
+      double price = d.price[row];
+      double before = logMeanExp(r, mu, jCat, p, alpha, price, 1.0);
+      double after = logMeanExp(r, mu, jCat, p, alpha, price, scale);
+      double change = before - after;
+      position[off + row] += change;
+      dsum[d.local[row]] += change;
+      dcount[d.local[row]]++;
+    }
+    for (int l = 0; l < np; l++) {
+      position[kpsi + l] += dsum[l] / dcount[l];
+    }
+    position[0] += c;
+  }
+
+  private static double logMeanExp(int r, double[] mu, int jCat, int p, double[] alpha,
+      double price, double scale) {
+    double m = Double.NEGATIVE_INFINITY;
+    for (int i = 0; i < r; i++) {
+      m = Math.max(m, mu[i * jCat + p] - scale * alpha[i] * price);
+    }
+    double s = 0;
+    for (int i = 0; i < r; i++) {
+      s += Math.exp(mu[i * jCat + p] - scale * alpha[i] * price - m);
+    }
+    return m + Math.log(s / r);
+  }
+
+  /**
+   * Log of the collapsed posterior of the locals summarised by {@code s}, up to terms that do
+   * not change under the move (the sales likelihood is added separately): the psi hierarchy with
+   * Gamma integrated out given V_psi, the intercepts with kappabar integrated out given tau^2, and
+   * the xi and price-equation terms with (pi0, pi, lambda) integrated out given gamma, sigma_xi^2
+   * and sigma_p^2 (lambda held at its value when {@code fixedLambda}).
+   */
+  public static double collapsedLogDensity(Globals g, GlobalStats s, Priors priors,
+      boolean fixedLambda) {
+    return hierarchy(g, s.hierarchy(), priors) + intercepts(g, s.intercepts(), priors)
+        + regression(g, s.regression(), priors, fixedLambda);
+  }
+
+  static double hierarchy(Globals g, HierarchyStats s, Priors priors) {
+    int kpsi = s.kpsi();
+    Gaussian cond = GlobalGibbs.gammaPsiConditional(g.vPsi(), s, priors);
+    double[] gStar = cond.mean();
+    org.ejml.data.DMatrixRMaj v = new org.ejml.data.DMatrixRMaj(kpsi, kpsi, true, g.vPsi());
+    double logDetV = Math.log(org.ejml.dense.row.CommonOps_DDRM.det(v));
+    org.ejml.data.DMatrixRMaj inv = new org.ejml.data.DMatrixRMaj(kpsi, kpsi);
+    if (!org.ejml.dense.row.CommonOps_DDRM.invertSPD(v.copy(), inv)) {
+      throw new IllegalArgumentException("V_psi is not positive definite");
+    }
+    double[] vinv = inv.getData();
+    double[] scatter = s.residualScatter(gStar);
+    double tr = 0;
+    for (int i = 0; i < kpsi * kpsi; i++) {
+      tr += vinv[i] * scatter[i];
+    }
+    double lik = -0.5 * s.count() * (kpsi * Math.log(2 * Math.PI) + logDetV) - 0.5 * tr;
+    double prior = 0;
+    double[] m0 = priors.gammaPsiMean();
+    double[] v0 = priors.gammaPsiVar();
+    for (int i = 0; i < gStar.length; i++) {
+      prior += normal(gStar[i], m0[i], v0[i]);
+    }
+    return lik + prior - cond.logDensityAtMean();
+  }
+
+  static double intercepts(Globals g, InterceptStats s, Priors priors) {
+    double tau2 = g.tau2();
+    Normal prior = priors.kappabar();
+    double out = 0;
+    for (int j = 0; j < s.products(); j++) {
+      double n = s.count(j);
+      if (n == 0) {
+        continue;
+      }
+      double prec = n / tau2 + 1.0 / prior.var();
+      double mean = (s.sum(j) / tau2 + prior.mean() / prior.var()) / prec;
+      double ss = s.sumOfSquares(j) - 2 * mean * s.sum(j) + n * mean * mean;
+      double lik = -0.5 * n * Math.log(2 * Math.PI * tau2) - 0.5 * ss / tau2;
+      out += lik + normal(mean, prior.mean(), prior.var())
+          - (-0.5 * Math.log(2 * Math.PI) + 0.5 * Math.log(prec));
+    }
+    return out;
+  }
+
+  static double regression(Globals g, RegressionStats s, Priors priors, boolean fixedLambda) {
+    double n = s.n();
+    double demand = -0.5 * n * Math.log(2 * Math.PI * g.sigmaXi2())
+        - 0.5 * GlobalGibbs.demandResidualSquares(g, s) / g.sigmaXi2();
+    int j = s.products();
+    int kc = s.kc();
+    Gaussian cond = fixedLambda
+        ? GlobalGibbs.priceEquationFixedLambdaConditional(g, s, priors)
+        : GlobalGibbs.priceEquationConditional(g, s, priors);
+    double[] t = cond.mean();
+    double[] pi0 = java.util.Arrays.copyOfRange(t, 0, j);
+    double[] pi = java.util.Arrays.copyOfRange(t, j, j + kc);
+    double lambda = fixedLambda ? g.lambda() : t[j + kc];
+    Globals at = g.withPriceEquation(pi0, pi, lambda);
+    double price = -0.5 * n * Math.log(2 * Math.PI * g.sigmaP2())
+        - 0.5 * GlobalGibbs.priceResidualSquares(at, s) / g.sigmaP2();
+    double prior = 0;
+    for (int i = 0; i < j; i++) {
+      prior += normal(pi0[i], priors.pi0().mean(), priors.pi0().var());
+    }
+    for (int i = 0; i < kc; i++) {
+      prior += normal(pi[i], priors.pi().mean(), priors.pi().var());
+    }
+    if (!fixedLambda) {
+      prior += normal(lambda, priors.lambda().mean(), priors.lambda().var());
+    }
+    return demand + price + prior - cond.logDensityAtMean();
+  }
+
+  private static double normal(double y, double m, double v) {
+    double e = y - m;
+    return -0.5 * (Math.log(2 * Math.PI * v) + e * e / v);
+  }
+}
