@@ -14,6 +14,7 @@ import picocli.CommandLine.Spec;
     description = "Store-level demand estimation and what-if scenarios from store-week sales.",
     subcommands = {
       ValidateCommand.class,
+      EstimateCommand.class,
       GenerateCommand.class,
       DemoCommand.class,
       CommandLine.HelpCommand.class

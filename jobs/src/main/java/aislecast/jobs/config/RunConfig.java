@@ -14,14 +14,23 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  */
 public record RunConfig(
     @JsonProperty("input") InputConfig input,
-    @JsonProperty("validation") ValidationConfig validation) {
+    @JsonProperty("validation") ValidationConfig validation,
+    @JsonProperty("sampler") SamplerConfig sampler,
+    @JsonProperty("priors") PriorsConfig priors) {
 
   public RunConfig {
     input = input == null ? InputConfig.defaults() : input;
     validation = validation == null ? ValidationConfig.defaults() : validation;
+    sampler = sampler == null ? SamplerConfig.defaults() : sampler;
+    priors = priors == null ? PriorsConfig.defaults() : priors;
   }
 
   public static RunConfig defaults() {
-    return new RunConfig(null, null);
+    return new RunConfig(null, null, null, null);
+  }
+
+  /** Copy with another sampler section. */
+  public RunConfig withSampler(SamplerConfig s) {
+    return new RunConfig(input, validation, s, priors);
   }
 }

@@ -1,0 +1,416 @@
+package aislecast.jobs.estimate;
+
+import aislecast.core.diag.Diagnostics;
+import aislecast.core.diag.ParameterSummary;
+import aislecast.core.estimate.InitialGlobals;
+import aislecast.core.estimate.SamplerSettings;
+import aislecast.core.estimate.StoreBlock;
+import aislecast.core.globals.Dims;
+import aislecast.core.globals.Globals;
+import aislecast.core.globals.Priors;
+import aislecast.core.model.StoreData;
+import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.config.RunConfigLoader;
+import aislecast.jobs.config.RunFailure;
+import aislecast.jobs.config.SamplerConfig;
+import aislecast.jobs.io.RunDirectory;
+import aislecast.jobs.validate.InputValidator;
+import aislecast.jobs.validate.ValidatedInput;
+import java.io.PrintWriter;
+import java.io.Serializable;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.HashMap;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import org.apache.hadoop.fs.Path;
+import org.apache.spark.api.java.JavaRDD;
+import org.apache.spark.api.java.JavaSparkContext;
+import org.apache.spark.sql.SparkSession;
+
+/**
+ * {@code aislecast estimate} as a recipe (DESIGN sections 5, 7, 8): read and validate the input,
+ * build the stores' data, run the sweeps on Spark, summarise, write the run folder whole, then
+ * report convergence. The numerical work is in {@code aislecast.core.estimate}.
+ *
+ * <p>Folders: the run appears as {@code <output>/<run id>/} only when complete (written to a
+ * hidden staging folder first). While it runs, checkpoints live in {@code
+ * <output>/.work-<run id>/_checkpoint/}, which {@code --resume} continues from and which is
+ * removed once the run is published; the published run keeps its final state in {@code
+ * _checkpoint/} for {@code --warm-start}.
+ */
+public final class EstimateJob {
+  public static final String RUN_JSON = "run.json";
+  public static final String CHECKPOINT_DIR = "_checkpoint";
+
+  /**
+   * @param stopAtSweep stop with a checkpoint once this many sweeps are done (-1: run all);
+   *     continue later with {@code resume}
+   * @param failAtSweep fault test only: fail the first attempt of one task in this sweep (-1)
+   */
+  public record Options(String input, String outputRoot, String runId, long seed, boolean resume,
+      String warmStart, boolean allowUnconverged, int stopAtSweep, int failAtSweep,
+      String confSource) {
+    public Options {
+      if (input == null || outputRoot == null || runId == null) {
+        throw new IllegalArgumentException("input, output and run id must be set");
+      }
+    }
+
+    public static Options of(String input, String outputRoot, String runId, long seed) {
+      return new Options(input, outputRoot, runId, seed, false, null, false, -1, -1, null);
+    }
+
+    public Options withResume(boolean r) {
+      return new Options(input, outputRoot, runId, seed, r, warmStart, allowUnconverged,
+          stopAtSweep, failAtSweep, confSource);
+    }
+
+    public Options withStopAtSweep(int k) {
+      return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged, k,
+          failAtSweep, confSource);
+    }
+
+    public Options withFailAtSweep(int k) {
+      return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
+          stopAtSweep, k, confSource);
+    }
+
+    public Options withWarmStart(String runDir) {
+      return new Options(input, outputRoot, runId, seed, resume, runDir, allowUnconverged,
+          stopAtSweep, failAtSweep, confSource);
+    }
+
+    public Options withAllowUnconverged(boolean a) {
+      return new Options(input, outputRoot, runId, seed, resume, warmStart, a, stopAtSweep,
+          failAtSweep, confSource);
+    }
+
+    public Options withConfSource(String s) {
+      return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
+          stopAtSweep, failAtSweep, s);
+    }
+  }
+
+  /** Run status as recorded in run.json. */
+  public enum Status {
+    CONVERGED("converged"),
+    UNCONVERGED_ALLOWED("not_converged_allowed"),
+    NOT_CONVERGED("not_converged"),
+    STOPPED("stopped");
+
+    public final String label;
+
+    Status(String label) {
+      this.label = label;
+    }
+  }
+
+  /**
+   * @param runDir the published run folder (null when stopped)
+   * @param failures convergence failures, one line per parameter (empty when converged)
+   * @param globalDraws kept draws, {@code [chain][draw][parameter]}
+   */
+  public record Result(Status status, String runDir, String[] parameterNames,
+      double[][][] globalDraws, ParameterSummary[] summaries, List<String> failures,
+      int sweepsDone, double sweepSeconds, double modelSeconds, double aggregateSeconds,
+      double driverSeconds, EstimationProblem problem) {
+    public boolean converged() {
+      return failures.isEmpty();
+    }
+  }
+
+  private EstimateJob() {}
+
+  /** The sampler settings of a run configuration and seed. */
+  public static SamplerSettings samplerSettings(SamplerConfig s, long seed) {
+    return new SamplerSettings(s.chains(), s.warmup(), s.sampling(), s.localSteps(),
+        s.leapfrogSteps(), s.targetAccept(), seed, s.fixLambdaZero(), s.ridgeMove());
+  }
+
+  /**
+   * Runs the whole job. Convergence failures do not throw: they are in the result (and run.json),
+   * and the caller decides the exit code; bad input and configuration throw {@link RunFailure}.
+   */
+  public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
+    JavaSparkContext jsc = JavaSparkContext.fromSparkContext(spark.sparkContext());
+    SamplerConfig sc = config.sampler();
+    Map<String, Double> timings = new LinkedHashMap<>();
+    long tStart = System.nanoTime();
+
+    // 1. Where the stopped state lives, and whether this call may use it.
+    String workDir = new Path(new Path(o.outputRoot()), ".work-" + o.runId()).toString();
+    StateCheckpoints work = new StateCheckpoints(jsc, workDir + "/" + CHECKPOINT_DIR);
+    if (o.resume() && work.latest().isEmpty()) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "nothing to resume: run '" + o.runId()
+          + "' has no checkpoint in " + work.location());
+    }
+    if (!o.resume() && work.exists()) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "run '" + o.runId() + "' was stopped before and"
+          + " has checkpoints in " + work.location() + "; continue it with --resume, or delete"
+          + " that folder to start over");
+    }
+    if (o.resume() && o.warmStart() != null) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "--resume and --warm-start exclude each other");
+    }
+
+    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId());
+    ValidatedInput validated = null;
+    SweepLoop loop = null;
+    try {
+      // 2. Read and validate (rejects go to the run folder).
+      long t = System.nanoTime();
+      validated = InputValidator.run(spark, config, o.input(), run.staging());
+      double maxShare = config.validation().maxRejectShare();
+      out.println("estimate: input " + o.input() + " (run " + o.runId() + ")");
+      out.print(validated.summary().format(maxShare));
+      for (String note : validated.notes()) {
+        out.println("  note: " + note);
+      }
+      if (validated.summary().rejectShare() > maxShare) {
+        // publish the rejects so the user can see them, then stop with exit 2
+        Manifest.writeRejected(run.staging(), spark, o, config, validated);
+        run.commit();
+        validated.requireRejectShareAtMost(maxShare,
+            run.target() + "/" + InputValidator.REJECTS_DIR);
+      }
+      timings.put("validate", secondsSince(t));
+
+      // 3. The stores' data.
+      t = System.nanoTime();
+      EstimationProblem problem = ProblemBuilder.build(jsc, validated, o.seed(),
+          sc.shopperDraws());
+      out.println("  model: " + ProblemBuilder.describe(problem));
+      for (String note : problem.notes()) {
+        out.println("  note: " + note);
+      }
+      timings.put("assemble", secondsSince(t));
+
+      // 4. Start, resume or warm-start the chains.
+      t = System.nanoTime();
+      SamplerSettings set = samplerSettings(sc, o.seed());
+      Dims dims = problem.dims();
+      Priors priors = config.priors().toPriors(problem.kd(), problem.kx());
+      String key = problem.fingerprint() + "|" + set + "|" + config.priors() + "|sum_group="
+          + sc.sumGroup();
+      int partitions = sc.partitions() > 0 ? sc.partitions()
+          : Math.max(1, Math.min(problem.stores().size(), 2 * jsc.defaultParallelism()));
+      SweepLoop.Settings loopSettings = new SweepLoop.Settings(set, priors, partitions,
+          sc.sumGroup(), sc.checkpointEvery(), sc.progressEvery(), o.stopAtSweep(),
+          o.failAtSweep());
+      loop = new SweepLoop(jsc, problem, loopSettings, work, out);
+      if (o.resume()) {
+        Path latest = work.latest().orElseThrow();
+        ChainRecord saved = work.readRecord(latest);
+        if (!saved.key.equals(key)) {
+          throw new RunFailure(RunFailure.BAD_INPUT, "cannot resume run '" + o.runId()
+              + "': its checkpoint was written for other input data, seed or sampler/prior"
+              + " settings; rerun with the same --input, --conf and --seed, or start a new run");
+        }
+        loop.resume(latest, saved);
+        out.println("  resuming after sweep " + saved.nextSweep() + " of " + set.totalSweeps());
+      } else if (o.warmStart() != null) {
+        WarmStart warm = WarmStart.read(jsc, o.warmStart(), problem, set.chains());
+        loop.start(key, warm.globals(), warm.positions());
+        out.println("  warm start from " + o.warmStart() + ": globals of its last sweep, store"
+            + " positions for " + warm.positions().size() + " of " + problem.stores().size()
+            + " stores (the others' data changed)");
+      } else {
+        loop.start(key, InitialGlobals.of(problem.stores(), dims, problem.kx(), set),
+            Map.of());
+      }
+      timings.put("initialise", secondsSince(t));
+      out.printf(Locale.ROOT, "  sampler: %d chains, %d warmup + %d kept sweeps, %d partitions,"
+          + " checkpoint every %d sweeps%n", set.chains(), set.warmupSweeps(),
+          set.samplingSweeps(), partitions, sc.checkpointEvery());
+      out.flush();
+
+      // 5. The sweeps.
+      t = System.nanoTime();
+      boolean finished = loop.run();
+      timings.put("sweeps", secondsSince(t));
+      ChainRecord rec = loop.record();
+      if (!finished) {
+        run.abort();
+        out.println("estimate: stopped after sweep " + rec.nextSweep() + " of "
+            + set.totalSweeps() + "; state saved in " + work.location()
+            + "; continue with: aislecast estimate --resume --run-id " + o.runId()
+            + " (same --input, --output, --conf, --seed)");
+        out.flush();
+        return new Result(Status.STOPPED, null, Globals.parameterNames(dims), rec.kept, null,
+            List.of(), rec.nextSweep(), rec.sweepSeconds, rec.modelSeconds,
+            rec.aggregateSeconds, rec.driverSeconds, problem);
+      }
+
+      // 6. Diagnostics.
+      t = System.nanoTime();
+      String[] names = Globals.parameterNames(dims);
+      ParameterSummary[] summaries = new ParameterSummary[names.length];
+      for (int p = 0; p < names.length; p++) {
+        summaries[p] = Diagnostics.summarize(rec.chainsOf(p));
+      }
+      List<String> failures = convergenceFailures(names, summaries, sc.rhatMax(), sc.essMin());
+      Status status = failures.isEmpty() ? Status.CONVERGED
+          : o.allowUnconverged() ? Status.UNCONVERGED_ALLOWED : Status.NOT_CONVERGED;
+      timings.put("diagnostics", secondsSince(t));
+
+      // 7. Outputs, written whole into the staging folder, then published.
+      t = System.nanoTime();
+      String staging = run.staging();
+      JavaRDD<StoreBlock> blocks = loop.state().map(s -> s.block);
+      PosteriorWriter.writeGlobalDraws(spark, staging, rec.kept, names);
+      PosteriorWriter.writeStoreDraws(spark, staging, blocks,
+          EstimationProblem.psiNames(problem.kx()));
+      PosteriorWriter.writeSummary(spark, staging, names, summaries);
+      new StateCheckpoints(jsc, staging + "/" + CHECKPOINT_DIR).save(loop.state(), rec);
+      timings.put("write", secondsSince(t));
+      timings.put("total", secondsSince(tStart));
+      Manifest.write(staging, spark, o, config, set, problem, rec, summaries, names, failures,
+          status, timings, validated);
+      run.commit();
+      work.deleteAll();
+
+      Result result = new Result(status, run.target(), names, rec.kept, summaries, failures,
+          rec.nextSweep(), rec.sweepSeconds, rec.modelSeconds, rec.aggregateSeconds,
+          rec.driverSeconds, problem);
+      printOutputs(out, result, sc);
+      return result;
+    } finally {
+      run.abort();
+      if (loop != null) {
+        loop.releaseBroadcasts();
+        if (loop.state() != null) {
+          loop.state().unpersist(false);
+        }
+      }
+      if (validated != null) {
+        validated.close();
+      }
+    }
+  }
+
+  /**
+   * Global parameters beyond the limits: R-hat above {@code rhatMax} or bulk ESS below
+   * {@code essMin}. A parameter whose draws are all equal (e.g. lambda held at 0) has no R-hat
+   * and is skipped; non-finite draws are a failure.
+   */
+  static List<String> convergenceFailures(String[] names, ParameterSummary[] s, double rhatMax,
+      double essMin) {
+    List<String> out = new ArrayList<>();
+    for (int p = 0; p < names.length; p++) {
+      ParameterSummary q = s[p];
+      if (Double.isNaN(q.mean())) {
+        out.add(names[p] + ": non-finite draws");
+        continue;
+      }
+      if (q.sd() == 0.0) {
+        continue;
+      }
+      boolean badRhat = !(q.rhat() <= rhatMax);
+      boolean badEss = !(q.essBulk() >= essMin);
+      if (badRhat || badEss) {
+        out.add(String.format(Locale.ROOT, "%s: R-hat %.3f%s, bulk ESS %.0f%s", names[p],
+            q.rhat(), badRhat ? " > " + rhatMax : "", q.essBulk(),
+            badEss ? " < " + essMin : ""));
+      }
+    }
+    return out;
+  }
+
+  private static void printOutputs(PrintWriter out, Result r, SamplerConfig sc) {
+    out.printf(Locale.ROOT, "estimate: %d sweeps in %s (%.2f sweeps/s; model work %.0f%% of"
+        + " task time)%n", r.sweepsDone(), SweepLoop.clock(r.sweepSeconds()),
+        r.sweepsDone() / Math.max(1e-9, r.sweepSeconds()),
+        100 * r.modelSeconds() / Math.max(1e-9, r.sweepSeconds()));
+    double worst = Double.NaN;
+    double minEss = Double.NaN;
+    for (ParameterSummary s : r.summaries()) {
+      if (!(s.rhat() <= worst)) {
+        worst = Double.isNaN(s.rhat()) ? worst : s.rhat();
+      }
+      if (!(s.essBulk() >= minEss)) {
+        minEss = Double.isNaN(s.essBulk()) ? minEss : s.essBulk();
+      }
+    }
+    out.printf(Locale.ROOT, "  worst R-hat %.3f (limit %.3f), smallest bulk ESS %.0f (limit %.0f)"
+        + " over %d global parameters%n", worst, sc.rhatMax(), minEss, sc.essMin(),
+        r.parameterNames().length);
+    out.println("Outputs (run " + r.status().label + "):");
+    for (String p : new String[] {PosteriorWriter.GLOBAL_DRAWS, PosteriorWriter.STORE_DRAWS,
+        PosteriorWriter.SUMMARY, InputValidator.REJECTS_DIR, RUN_JSON}) {
+      out.println("  " + r.runDir() + "/" + p);
+    }
+    if (!r.converged()) {
+      out.println("Convergence limits not met for " + r.failures().size() + " of "
+          + r.parameterNames().length + " global parameters:");
+      for (String f : r.failures().subList(0, Math.min(10, r.failures().size()))) {
+        out.println("  " + f);
+      }
+      if (r.failures().size() > 10) {
+        out.println("  ... (see " + PosteriorWriter.SUMMARY + ")");
+      }
+    }
+    out.flush();
+  }
+
+  private static double secondsSince(long t0) {
+    return (System.nanoTime() - t0) * 1e-9;
+  }
+
+  /** Starting values taken from an earlier run's final state. */
+  record WarmStart(Globals[] globals, Map<String, double[][]> positions) {
+    private record Local(String storeId, String[] weeks, int[] product, double[][] positions)
+        implements Serializable {}
+
+    static WarmStart read(JavaSparkContext jsc, String runDir, EstimationProblem problem,
+        int chains) {
+      StateCheckpoints prev = new StateCheckpoints(jsc, runDir + "/" + CHECKPOINT_DIR);
+      Path latest = prev.latest().orElseThrow(() -> new RunFailure(RunFailure.BAD_INPUT,
+          "--warm-start " + runDir + ": no final state in " + prev.location()
+              + " (is it a finished estimate run folder?)"));
+      ChainRecord rec = prev.readRecord(latest);
+      String[] ids = new String[problem.catalog().size()];
+      for (int p = 0; p < ids.length; p++) {
+        ids[p] = problem.catalog().id(p);
+      }
+      Globals[] last = rec.state.globals();
+      if (!Arrays.equals(rec.productIds, ids) || !last[0].dims().equals(problem.dims())) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "--warm-start " + runDir + ": that run had"
+            + " other products, attributes, demographics or shifters (" + last[0].dims()
+            + " vs " + problem.dims() + "); its globals cannot start this run");
+      }
+      Globals[] globals = new Globals[chains];
+      for (int c = 0; c < chains; c++) {
+        globals[c] = last[c % last.length];
+      }
+      List<Local> locals = prev.readBlocks(latest).map(b -> {
+        double[][] pos = new double[b.chains.length][];
+        for (int c = 0; c < pos.length; c++) {
+          pos[c] = b.chains[c].position;
+        }
+        return new Local(b.data.storeId, b.data.weeks, b.data.product, pos);
+      }).collect();
+      Map<String, StoreData> now = new HashMap<>();
+      for (StoreData d : problem.stores()) {
+        now.put(d.storeId, d);
+      }
+      Map<String, double[][]> positions = new HashMap<>();
+      for (Local l : locals) {
+        StoreData d = now.get(l.storeId());
+        // positions index (psi, kappa per stocked product, delta per row): same layout only
+        if (d != null && Arrays.equals(d.weeks, l.weeks()) && Arrays.equals(d.product,
+            l.product())) {
+          positions.put(l.storeId(), l.positions());
+        }
+      }
+      return new WarmStart(globals, positions);
+    }
+  }
+
+  /** The configuration as JSON text, for the manifest. */
+  static String configJson(RunConfig config) {
+    return RunConfigLoader.toJson(config);
+  }
+}

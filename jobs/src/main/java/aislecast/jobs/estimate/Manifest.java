@@ -1,0 +1,159 @@
+package aislecast.jobs.estimate;
+
+import aislecast.core.diag.ParameterSummary;
+import aislecast.core.estimate.SamplerSettings;
+import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.config.RunConfigLoader;
+import aislecast.jobs.config.RunFailure;
+import aislecast.jobs.validate.ValidatedInput;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import com.fasterxml.jackson.databind.SerializationFeature;
+import java.io.IOException;
+import java.io.OutputStream;
+import java.time.Instant;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Map;
+import org.apache.hadoop.fs.FileSystem;
+import org.apache.hadoop.fs.Path;
+import org.apache.spark.sql.SparkSession;
+
+/**
+ * {@code run.json}, the run's manifest: status, configuration, seed, versions, the problem's
+ * sizes and fingerprint, timings per phase, sweeps, sampler statistics (local HMC acceptance,
+ * ridge-move acceptance, divergences) and the convergence verdict. Keys are lower_snake_case.
+ */
+final class Manifest {
+  static final String AISLECAST_VERSION = "0.1.0";
+  private static final ObjectMapper JSON =
+      new ObjectMapper().enable(SerializationFeature.INDENT_OUTPUT);
+
+  private Manifest() {}
+
+  static void write(String runDir, SparkSession spark, EstimateJob.Options o, RunConfig config,
+      SamplerSettings set, EstimationProblem problem, ChainRecord rec,
+      ParameterSummary[] summaries, String[] names, List<String> failures,
+      EstimateJob.Status status, Map<String, Double> timings, ValidatedInput validated) {
+    Map<String, Object> m = header(spark, o, config, status.label);
+    Map<String, Object> in = new LinkedHashMap<>();
+    in.put("input_rows", validated.summary().inputRows());
+    in.put("rejected_rows", validated.summary().rejectedRows());
+    in.put("stores", problem.stores().size());
+    in.put("products", problem.catalog().size());
+    in.put("rows", problem.rows());
+    in.put("attributes", List.of(problem.catalog().attributeNames()));
+    in.put("demographics", problem.demographicNames());
+    in.put("demand_shifters", problem.demandShifters());
+    in.put("cost_shifters_log", problem.costShifters());
+    in.put("shopper_draws", problem.drawsSource());
+    in.put("data_fingerprint_sha256", problem.fingerprint());
+    in.put("notes", problem.notes());
+    m.put("data", in);
+
+    Map<String, Object> s = new LinkedHashMap<>();
+    s.put("chains", set.chains());
+    s.put("warmup_sweeps", set.warmupSweeps());
+    s.put("sampling_sweeps", set.samplingSweeps());
+    s.put("sweeps_done", rec.nextSweep());
+    s.put("local_acceptance_warmup", set.warmupSweeps() == 0 ? null
+        : rec.acceptWarmup / set.warmupSweeps());
+    s.put("local_acceptance_sampling", rec.acceptSampling / set.samplingSweeps());
+    s.put("ridge_acceptance", finite(rec.state.ridgeAcceptance()));
+    s.put("divergences_warmup", rec.divergentWarmup);
+    s.put("divergences_sampling", rec.divergentSampling);
+    s.put("warm_start", o.warmStart());
+    m.put("sampler", s);
+
+    Map<String, Object> conv = new LinkedHashMap<>();
+    double worst = Double.NaN;
+    String worstName = null;
+    double minEss = Double.NaN;
+    String minName = null;
+    for (int p = 0; p < names.length; p++) {
+      if (Double.isFinite(summaries[p].rhat()) && !(summaries[p].rhat() <= worst)) {
+        worst = summaries[p].rhat();
+        worstName = names[p];
+      }
+      if (Double.isFinite(summaries[p].essBulk()) && !(summaries[p].essBulk() >= minEss)) {
+        minEss = summaries[p].essBulk();
+        minName = names[p];
+      }
+    }
+    conv.put("rhat_max_limit", config.sampler().rhatMax());
+    conv.put("ess_min_limit", config.sampler().essMin());
+    conv.put("worst_rhat", finite(worst));
+    conv.put("worst_rhat_parameter", worstName);
+    conv.put("min_ess_bulk", finite(minEss));
+    conv.put("min_ess_bulk_parameter", minName);
+    conv.put("global_parameters", names.length);
+    conv.put("failures", failures);
+    m.put("convergence", conv);
+
+    Map<String, Object> t = new LinkedHashMap<>();
+    timings.forEach((k, v) -> t.put(k + "_seconds", v));
+    t.put("sweep_seconds_total", rec.sweepSeconds);
+    t.put("sweep_model_task_seconds", rec.modelSeconds);
+    t.put("sweep_stage_seconds", rec.aggregateSeconds);
+    t.put("sweep_driver_seconds", rec.driverSeconds);
+    m.put("timings", t);
+    writeJson(spark, runDir, m);
+  }
+
+  /** The manifest of a run stopped for too many rejected input rows. */
+  static void writeRejected(String runDir, SparkSession spark, EstimateJob.Options o,
+      RunConfig config, ValidatedInput validated) {
+    Map<String, Object> m = header(spark, o, config, "bad_input");
+    Map<String, Object> in = new LinkedHashMap<>();
+    in.put("input_rows", validated.summary().inputRows());
+    in.put("rejected_rows", validated.summary().rejectedRows());
+    in.put("reject_share", validated.summary().rejectShare());
+    m.put("data", in);
+    writeJson(spark, runDir, m);
+  }
+
+  private static Map<String, Object> header(SparkSession spark, EstimateJob.Options o,
+      RunConfig config, String status) {
+    Map<String, Object> m = new LinkedHashMap<>();
+    m.put("command", "estimate");
+    m.put("run_id", o.runId());
+    m.put("status", status);
+    m.put("written_at", Instant.now().toString());
+    m.put("input", o.input());
+    m.put("configuration_file", o.confSource());
+    m.put("seed", o.seed());
+    m.put("resumed", o.resume());
+    Map<String, Object> v = new LinkedHashMap<>();
+    v.put("aislecast", AISLECAST_VERSION);
+    v.put("spark", spark.version());
+    v.put("java", System.getProperty("java.version"));
+    v.put("spark_master", spark.sparkContext().master());
+    m.put("versions", v);
+    try {
+      m.put("configuration", JSON.readTree(RunConfigLoader.toJson(config)));
+    } catch (IOException e) {
+      throw new IllegalStateException("configuration JSON does not parse back", e);
+    }
+    return m;
+  }
+
+  private static Object finite(double v) {
+    return Double.isFinite(v) ? v : null;
+  }
+
+  private static void writeJson(SparkSession spark, String runDir, Map<String, Object> m) {
+    Path p = new Path(runDir, EstimateJob.RUN_JSON);
+    try {
+      FileSystem fs = p.getFileSystem(spark.sparkContext().hadoopConfiguration());
+      try (OutputStream os = fs.create(p, false)) {
+        JSON.writeValue(os, m);
+      }
+    } catch (IOException e) {
+      throw new RunFailure(RunFailure.OTHER, "cannot write " + p + ": " + e.getMessage(), e);
+    }
+  }
+
+  static List<String> copy(List<String> l) {
+    return new ArrayList<>(l);
+  }
+}

@@ -1,0 +1,303 @@
+package aislecast.jobs.estimate;
+
+import aislecast.core.diag.Diagnostics;
+import aislecast.core.estimate.DriverState;
+import aislecast.core.estimate.SamplerSettings;
+import aislecast.core.estimate.StoreBlock;
+import aislecast.core.estimate.SweepInput;
+import aislecast.core.estimate.SweepStats;
+import aislecast.core.estimate.Sweeps;
+import aislecast.core.globals.Dims;
+import aislecast.core.globals.Globals;
+import aislecast.core.globals.Priors;
+import aislecast.core.mcmc.StoreSampler;
+import aislecast.core.model.LocalParams;
+import aislecast.core.model.StoreData;
+import java.io.PrintWriter;
+import java.util.ArrayList;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import org.apache.spark.TaskContext;
+import org.apache.spark.api.java.JavaRDD;
+import org.apache.spark.api.java.JavaSparkContext;
+import org.apache.spark.api.java.function.Function;
+import org.apache.spark.broadcast.Broadcast;
+import org.apache.spark.storage.StorageLevel;
+
+/**
+ * The estimation sweeps on Spark (DESIGN section 5), one stage per sweep:
+ *
+ * <ol>
+ *   <li>broadcast {@link Sweeps#input} (every chain's globals and ridge shifts);
+ *   <li>map every store block to a copy advanced by {@link Sweeps#sweepStore};
+ *   <li>{@code treeAggregate} the stores' {@link SweepStats} in a fixed order ({@link
+ *       OrderedStats}), which also materialises the new, persisted state RDD;
+ *   <li>{@link Sweeps#driverStep} on the driver; unpersist the previous state RDD.
+ * </ol>
+ *
+ * <p>Every {@code checkpointEvery} sweeps the state goes to {@link StateCheckpoints} and is read
+ * back, which cuts the lineage; the broadcasts of the sweeps before it are destroyed then, not
+ * earlier, because until the checkpoint a lost cached partition is recomputed through them.
+ */
+final class SweepLoop {
+  /**
+   * @param stopAtSweep stop (with a checkpoint) once this many sweeps are done; -1 runs all
+   * @param failAtSweep fault test: the first attempt of partition 0's task in this sweep throws;
+   *     -1 never
+   */
+  record Settings(SamplerSettings sampler, Priors priors, int partitions, int sumGroup,
+      int checkpointEvery, int progressEvery, int stopAtSweep, int failAtSweep) {}
+
+  private static final StorageLevel LEVEL = StorageLevel.MEMORY_AND_DISK();
+
+  private final JavaSparkContext jsc;
+  private final EstimationProblem problem;
+  private final Settings cfg;
+  private final StateCheckpoints checkpoints;
+  private final PrintWriter out;
+  private final Dims dims;
+  private final String[] names;
+  private final List<Broadcast<SweepInput>> liveBroadcasts = new ArrayList<>();
+  private JavaRDD<SweptStore> state;
+  private ChainRecord record;
+  private long runStartNanos;
+  private int sweepsAtStart;
+  private double worstRhat = Double.NaN;
+  private String worstParameter = "";
+  private int lastCheckpoint = -1;
+
+  SweepLoop(JavaSparkContext jsc, EstimationProblem problem, Settings cfg,
+      StateCheckpoints checkpoints, PrintWriter out) {
+    this.jsc = jsc;
+    this.problem = problem;
+    this.cfg = cfg;
+    this.checkpoints = checkpoints;
+    this.out = out;
+    this.dims = problem.dims();
+    this.names = Globals.parameterNames(dims);
+  }
+
+  /**
+   * Fresh chains: globals per chain (from the data, or a warm start), every store block
+   * initialised from them; {@code warm} holds per-store chain positions to start from instead
+   * (stores whose data layout matches the earlier run), possibly empty.
+   */
+  void start(String key, Globals[] globals, Map<String, double[][]> warm) {
+    SamplerSettings set = cfg.sampler();
+    record = new ChainRecord(key, productIds(), DriverState.start(globals), set.chains(),
+        set.samplingSweeps());
+    LocalParams[] params = Sweeps.localParams(globals);
+    Broadcast<LocalParams[]> bp = jsc.broadcast(params);
+    Broadcast<Map<String, double[][]>> bw = jsc.broadcast(warm);
+    double[] x = problem.catalog().x();
+    int kx = problem.kx();
+    JavaRDD<SweptStore> init = jsc.parallelize(problem.stores(), cfg.partitions())
+        .map(d -> {
+          StoreBlock b = Sweeps.initStore(d, x, kx, bp.value(), set);
+          double[][] pos = bw.value().get(d.storeId);
+          if (pos != null) {
+            for (int c = 0; c < b.chains.length; c++) {
+              b.chains[c].position = pos[c % pos.length].clone();
+            }
+          }
+          return new SweptStore(b, null, 0L);
+        })
+        .setName("stores@init");
+    init.persist(LEVEL).count();
+    bp.destroy();
+    bw.destroy();
+    // lineage starts at the driver's list: small, so no checkpoint needed here
+    state = init;
+  }
+
+  /** Continues from a checkpoint folder written by {@link StateCheckpoints#save}. */
+  void resume(org.apache.hadoop.fs.Path sweepDir, ChainRecord saved) {
+    record = saved;
+    state = checkpoints.readBlocks(sweepDir).map(b -> new SweptStore(b, null, 0L))
+        .setName("stores@" + saved.nextSweep());
+    state.persist(LEVEL).count();
+    lastCheckpoint = saved.nextSweep();
+  }
+
+  private String[] productIds() {
+    String[] ids = new String[problem.catalog().size()];
+    for (int p = 0; p < ids.length; p++) {
+      ids[p] = problem.catalog().id(p);
+    }
+    return ids;
+  }
+
+  ChainRecord record() {
+    return record;
+  }
+
+  JavaRDD<SweptStore> state() {
+    return state;
+  }
+
+  /** Runs sweeps until all are done (true) or the stop sweep is reached (false). */
+  boolean run() {
+    SamplerSettings set = cfg.sampler();
+    int total = set.totalSweeps();
+    runStartNanos = System.nanoTime();
+    sweepsAtStart = record.nextSweep();
+    double[] x = problem.catalog().x();
+    int kx = problem.kx();
+    int stores = problem.stores().size();
+    while (record.nextSweep() < total) {
+      if (cfg.stopAtSweep() >= 0 && record.nextSweep() >= cfg.stopAtSweep()) {
+        if (lastCheckpoint != record.nextSweep()) {
+          checkpoint();
+        }
+        return false;
+      }
+      int sweep = record.nextSweep();
+      long t0 = System.nanoTime();
+      SweepInput in = Sweeps.input(record.state, set);
+      Broadcast<SweepInput> bin = jsc.broadcast(in);
+      liveBroadcasts.add(bin);
+      JavaRDD<SweptStore> next = state
+          .map(new StoreSweep(bin, x, kx, set, sweep, dims, cfg.failAtSweep()))
+          .setName("stores@" + (sweep + 1));
+      next.persist(LEVEL);
+      OrderedStats agg = next.treeAggregate(
+          new OrderedStats(cfg.sumGroup(), stores, dims, set.chains()),
+          (a, s) -> a.add(s.storeIndex(), s.stats, s.nanos),
+          OrderedStats::merge, 2);
+      long t1 = System.nanoTime();
+      SweepStats merged = agg.total();
+      record.state = Sweeps.driverStep(record.state, merged, in, cfg.priors(), set);
+      state.unpersist(false);
+      state = next;
+      long t2 = System.nanoTime();
+      keep(sweep, merged, set);
+      record.sweepSeconds += (t2 - t0) * 1e-9;
+      record.aggregateSeconds += (t1 - t0) * 1e-9;
+      record.driverSeconds += (t2 - t1) * 1e-9;
+      record.modelSeconds += agg.modelNanos() * 1e-9;
+      int done = record.nextSweep();
+      if (done % cfg.checkpointEvery() == 0 && done < total) {
+        checkpoint();
+      }
+      if (done % cfg.progressEvery() == 0 || done == total) {
+        progress(done, total);
+      }
+    }
+    return true;
+  }
+
+  /** Destroys every broadcast still alive (call when the loop's RDDs are no longer needed). */
+  void releaseBroadcasts() {
+    for (Broadcast<SweepInput> b : liveBroadcasts) {
+      b.destroy();
+    }
+    liveBroadcasts.clear();
+  }
+
+  double worstRhat() {
+    return worstRhat;
+  }
+
+  String worstParameter() {
+    return worstParameter;
+  }
+
+  private void keep(int sweep, SweepStats merged, SamplerSettings set) {
+    if (sweep >= set.warmupSweeps()) {
+      record.acceptSampling += merged.meanAcceptance();
+      record.divergentSampling += merged.totalDivergent();
+      Globals[] g = record.state.globals();
+      for (int c = 0; c < g.length; c++) {
+        record.kept[c][sweep - set.warmupSweeps()] = g[c].toFlat();
+      }
+      record.keptDraws = sweep - set.warmupSweeps() + 1;
+    } else {
+      record.acceptWarmup += merged.meanAcceptance();
+      record.divergentWarmup += merged.totalDivergent();
+    }
+  }
+
+  private void checkpoint() {
+    checkpoints.save(state, record);
+    lastCheckpoint = record.nextSweep();
+    org.apache.hadoop.fs.Path latest = checkpoints.latest().orElseThrow();
+    JavaRDD<SweptStore> reloaded = checkpoints.readBlocks(latest)
+        .map(b -> new SweptStore(b, null, 0L))
+        .setName("stores@" + record.nextSweep() + " (checkpoint)");
+    reloaded.persist(LEVEL).count();
+    state.unpersist(false);
+    state = reloaded;
+    releaseBroadcasts();
+  }
+
+  private void progress(int done, int total) {
+    if (record.keptDraws >= Diagnostics.MIN_DRAWS) {
+      worstRhat = Double.NaN;
+      worstParameter = "";
+      for (int p = 0; p < names.length; p++) {
+        double r = Diagnostics.rankRhat(record.chainsOf(p));
+        if (Double.isFinite(r) && !(r <= worstRhat)) {
+          worstRhat = r;
+          worstParameter = names[p];
+        }
+      }
+    }
+    double elapsed = (System.nanoTime() - runStartNanos) * 1e-9;
+    int doneHere = done - sweepsAtStart;
+    double eta = doneHere > 0 ? elapsed / doneHere * (total - done) : Double.NaN;
+    String phase = done <= cfg.sampler().warmupSweeps() ? "warmup" : "sampling";
+    out.printf(Locale.ROOT, "  sweep %d of %d (%s)  elapsed %s  eta %s  worst R-hat %s%n",
+        done, total, phase, clock(elapsed), clock(eta),
+        Double.isNaN(worstRhat) ? "- (no kept draws yet)"
+            : String.format(Locale.ROOT, "%.3f (%s)", worstRhat, worstParameter));
+    out.flush();
+  }
+
+  static String clock(double seconds) {
+    if (!Double.isFinite(seconds)) {
+      return "-";
+    }
+    long s = Math.round(seconds);
+    return String.format(Locale.ROOT, "%d:%02d:%02d", s / 3600, (s / 60) % 60, s % 60);
+  }
+
+  /** The task of one sweep: copy each store's block and advance it. */
+  private static final class StoreSweep implements Function<SweptStore, SweptStore> {
+    private static final long serialVersionUID = 1L;
+    private final Broadcast<SweepInput> input;
+    private final double[] x;
+    private final int kx;
+    private final SamplerSettings set;
+    private final int sweep;
+    private final Dims dims;
+    private final int failAtSweep;
+
+    StoreSweep(Broadcast<SweepInput> input, double[] x, int kx, SamplerSettings set, int sweep,
+        Dims dims, int failAtSweep) {
+      this.input = input;
+      this.x = x;
+      this.kx = kx;
+      this.set = set;
+      this.sweep = sweep;
+      this.dims = dims;
+      this.failAtSweep = failAtSweep;
+    }
+
+    @Override
+    public SweptStore call(SweptStore prev) {
+      long t0 = System.nanoTime();
+      // the previous RDD is cached: never mutate its blocks
+      StoreBlock b = prev.block.copy();
+      StoreData d = b.data;
+      SweepStats stats = new SweepStats(dims, set.chains());
+      Sweeps.sweepStore(b, new StoreSampler(d, x, kx), x, kx, input.value(), set, sweep, stats);
+      TaskContext tc = TaskContext.get();
+      if (sweep == failAtSweep && tc != null && tc.partitionId() == 0
+          && tc.attemptNumber() == 0) {
+        throw new IllegalStateException("injected task failure (fault test), sweep " + sweep);
+      }
+      return new SweptStore(b, stats, System.nanoTime() - t0);
+    }
+  }
+}
