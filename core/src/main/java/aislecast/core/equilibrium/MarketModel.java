@@ -53,7 +53,8 @@ public final class MarketModel {
    * @param x standardised attributes J x Kx of this market's products, not modified
    * @param products J
    * @param delta mean utilities (price excluded), length J, not modified
-   * @param firm owner of each product as 0..F-1, length J, not modified
+   * @param firm owner of each product as 0..F-1 (F at most the workspace's product capacity; a
+   *     firm may have no product here), length J, not modified
    */
   public void load(double[] psi, int kx, double[] nu, int shoppers, double[] x, int products,
       double[] delta, int[] firm) {
@@ -86,9 +87,9 @@ public final class MarketModel {
   private void finishLoad(int shoppers, int products, double[] delta, int[] firm) {
     int f = 0;
     for (int p = 0; p < products; p++) {
-      if (firm[p] < 0 || firm[p] >= products) {
+      if (firm[p] < 0 || firm[p] >= maxProducts) {
         throw new IllegalArgumentException("firm index " + firm[p] + " of product " + p
-            + " is not in 0.." + (products - 1));
+            + " is not in 0.." + (maxProducts - 1));
       }
       if (!Double.isFinite(delta[p])) {
         throw new IllegalArgumentException("mean utility of product " + p + " is " + delta[p]);
