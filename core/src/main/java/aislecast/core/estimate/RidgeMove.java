@@ -1,6 +1,8 @@
 package aislecast.core.estimate;
 
 import aislecast.core.demand.Heterogeneity;
+import aislecast.core.demand.ShareInversion;
+import aislecast.core.demand.ShareKernel;
 import aislecast.core.globals.Gaussian;
 import aislecast.core.globals.GlobalGibbs;
 import aislecast.core.globals.GlobalStats;
@@ -14,17 +16,17 @@ import aislecast.core.model.StoreData;
 
 /**
  * A joint move along the slowest direction of the posterior: every store's log price sensitivity
- * {@code a_s} shifts by the same {@code c}, each market's mean utilities follow so that
- * {@code eta_jt = delta_jt + log (1/R) sum_r exp(v_rjt)} stays fixed (predicted shares barely
- * move), and each store-product intercept follows its products' mean utility change (so
- * {@code xi} barely moves). Without it, a Gibbs sweep between globals and locals crawls: given
+ * {@code a_s} shifts by the same {@code c}, each market's mean utilities are re-inverted so that
+ * its predicted shares stay exactly as they were, and each store-product intercept follows its
+ * products' mean utility change (so {@code xi} barely moves). Without it, a Gibbs sweep between globals and locals crawls: given
  * the locals the price equation pins {@code lambda} and the intercept means far tighter than
  * their posterior spread, and given those the locals are pinned too.
  *
- * <p>Exactness: for a fixed {@code c} the map is a shift of {@code a} and of {@code kappa} by
- * amounts that depend only on other coordinates, and {@code delta -> eta} is a shift depending
- * only on {@code psi}: its Jacobian is 1, and the map for {@code -c} inverts the one for
- * {@code c}; with {@code c ~ N(0, s^2)} the Metropolis-Hastings ratio is the posterior ratio.
+ * <p>Exactness: for a fixed {@code c} the map shifts {@code a}, maps {@code delta} to the
+ * {@code delta'} with {@code s(delta'; psi') = s(delta; psi)} and shifts {@code kappa} by an
+ * amount that depends only on (psi, delta); the map for {@code -c} inverts the one for {@code c},
+ * so with {@code c ~ N(0, s^2)} the Metropolis-Hastings ratio is the posterior ratio times the
+ * map's Jacobian (Green 1995's deterministic-map form), returned by {@link #apply}.
  * That ratio is taken with {@code Gamma}, {@code kappabar} and the price equation's coefficients
  * integrated out (each Gaussian given the other globals, so the integral is exact by Chib's
  * identity), and those are then drawn from their conditionals given the chosen locals: a
@@ -35,50 +37,96 @@ public final class RidgeMove {
   private RidgeMove() {}
 
   /**
-   * Applies the shift to a local position {@code [psi, kappa, delta]} in place.
+   * Applies the shift to a local position {@code [psi, kappa, delta]} in place: {@code a += c};
+   * each market's {@code delta} re-inverted so that its predicted shares stay exactly what they
+   * were; each intercept moved by its rows' mean {@code delta} change.
+   *
+   * @return {@code log |det d(delta')/d(delta)| = sum_t [log det D_t(old) - log det D_t(new)]}
+   *     with {@code D = ds/d delta} (from {@code s(delta'; psi') = s(delta; psi)}); the map is
+   *     block-triangular in (psi, delta, kappa), so this is its whole log Jacobian. NaN when an
+   *     inversion fails (the caller rejects).
    */
-  public static void apply(StoreData d, double[] x, int kx, double[] position, double c) {
+  public static double apply(StoreData d, double[] x, int kx, double[] position, double c) {
     if (c == 0.0) {
-      return;
+      return 0.0;
     }
     int kpsi = Heterogeneity.dim(kx);
     int np = d.products.length;
     int off = kpsi + np;
     int r = d.shoppers;
     int jCat = x.length / Math.max(1, kx);
+    int jmax = d.maxAssortment();
     double[] alpha = new double[r];
     double[] mu = new double[r * jCat];
     Heterogeneity.shopperTastes(position, kx, d.nu, r, x, jCat, alpha, mu);
     double scale = Math.exp(c);
+    double[] vOld = new double[r * jmax];
+    double[] vNew = new double[r * jmax];
+    double[] del = new double[jmax];
+    double[] target = new double[jmax];
+    double[] probs = new double[r * jmax];
+    double[] jac = new double[jmax * jmax];
     double[] dsum = new double[np];
     double[] dcount = new double[np];
-    for (int row = 0; row < d.rows(); row++) {
-      int p = d.product[row];
-      double price = d.price[row];
-      double before = logMeanExp(r, mu, jCat, p, alpha, price, 1.0);
-      double after = logMeanExp(r, mu, jCat, p, alpha, price, scale);
-      double change = before - after;
-      position[off + row] += change;
-      dsum[d.local[row]] += change;
-      dcount[d.local[row]]++;
+    ShareInversion inversion = new ShareInversion(r, jmax);
+    double logJac = 0;
+    for (int t = 0; t < d.markets(); t++) {
+      int a = d.rowStart[t];
+      int j = d.rowStart[t + 1] - a;
+      for (int i = 0; i < r; i++) {
+        for (int p = 0; p < j; p++) {
+          double m = mu[i * jCat + d.product[a + p]];
+          double pr = d.price[a + p];
+          vOld[i * j + p] = m - alpha[i] * pr;
+          vNew[i * j + p] = m - scale * alpha[i] * pr;
+        }
+      }
+      System.arraycopy(position, off + a, del, 0, j);
+      ShareKernel.shares(r, j, del, vOld, target, probs);
+      ShareKernel.jacobianDelta(r, j, probs, jac);
+      logJac += logDetSpd(jac, j);
+      // start from the plain-logit guess: delta moves with the mean price-utility change
+      for (int p = 0; p < j; p++) {
+        double mean = 0;
+        for (int i = 0; i < r; i++) {
+          mean += vOld[i * j + p] - vNew[i * j + p];
+        }
+        del[p] += mean / r;
+      }
+      ShareInversion.Result res = inversion.invert(r, j, vNew, target, del, 1e-12, 100);
+      if (!res.converged()) {
+        return Double.NaN;
+      }
+      ShareKernel.shares(r, j, del, vNew, target, probs);
+      ShareKernel.jacobianDelta(r, j, probs, jac);
+      logJac -= logDetSpd(jac, j);
+      for (int p = 0; p < j; p++) {
+        double change = del[p] - position[off + a + p];
+        position[off + a + p] = del[p];
+        dsum[d.local[a + p]] += change;
+        dcount[d.local[a + p]]++;
+      }
     }
     for (int l = 0; l < np; l++) {
       position[kpsi + l] += dsum[l] / dcount[l];
     }
     position[0] += c;
+    return logJac;
   }
 
-  private static double logMeanExp(int r, double[] mu, int jCat, int p, double[] alpha,
-      double price, double scale) {
-    double m = Double.NEGATIVE_INFINITY;
-    for (int i = 0; i < r; i++) {
-      m = Math.max(m, mu[i * jCat + p] - scale * alpha[i] * price);
+  /** log det of a symmetric positive definite J x J matrix (row-major) by Cholesky (EJML). */
+  private static double logDetSpd(double[] a, int j) {
+    org.ejml.data.DMatrixRMaj m = new org.ejml.data.DMatrixRMaj(j, j);
+    System.arraycopy(a, 0, m.data, 0, j * j);
+    var chol = org.ejml.dense.row.factory.DecompositionFactory_DDRM.chol(j, true);
+    if (!chol.decompose(m)) {
+      return Double.NaN;
     }
     double s = 0;
-    for (int i = 0; i < r; i++) {
-      s += Math.exp(mu[i * jCat + p] - scale * alpha[i] * price - m);
+    for (int i = 0; i < j; i++) {
+      s += 2 * Math.log(m.get(i, i));
     }
-    return m + Math.log(s / r);
+    return s;
   }
 
   /**

@@ -8,7 +8,8 @@ import java.io.Serializable;
  * What every store returns from a sweep, mergeable (associative and commutative) so Spark can
  * {@code treeAggregate} it: per chain, the sufficient statistics of the locals after the local
  * transitions ({@code current}), those of the locals under the proposed ridge shift
- * ({@code proposed}), the change of the sales log likelihood that shift causes, and sampler
+ * ({@code proposed}), the change of the sales log likelihood that shift causes plus the shift's
+ * log Jacobian, and sampler
  * counters.
  */
 public final class SweepStats implements Serializable {

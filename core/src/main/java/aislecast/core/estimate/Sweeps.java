@@ -89,7 +89,11 @@ public final class Sweeps {
     boolean keep = sweep >= set.warmupSweeps();
     for (int c = 0; c < b.chains.length; c++) {
       StoreChainState s = b.chains[c];
-      RidgeMove.apply(d, x, kx, s.position, in.applyShift()[c]);
+      if (in.applyShift()[c] != 0.0) {
+        double[] nat = sampler.natural(s.position);
+        RidgeMove.apply(d, x, kx, nat, in.applyShift()[c]);
+        s.position = sampler.fromNatural(nat);
+      }
       SplitMix64 rng = storeStream(set.seed(), c, d.storeIndex, sweep);
       for (int k = 0; k < set.localSteps(); k++) {
         Hmc.Info info = sampler.step(rng, s, in.params()[c], local);
@@ -102,13 +106,16 @@ public final class Sweeps {
       if (keep) {
         System.arraycopy(s.position, 0, b.psiDraws[c], b.keptDraws * kpsi, kpsi);
       }
-      addStatistics(d, s.position, kpsi, out.current[c]);
+      double[] nat = sampler.natural(s.position);
+      addStatistics(d, nat, kpsi, out.current[c]);
       double shift = in.proposeShift()[c];
       if (shift != 0.0) {
-        double[] moved = s.position.clone();
-        RidgeMove.apply(d, x, kx, moved, shift);
-        out.salesDelta[c] += sampler.salesLogLikelihood(moved)
-            - sampler.salesLogLikelihood(s.position);
+        double[] moved = nat.clone();
+        double logJac = RidgeMove.apply(d, x, kx, moved, shift);
+        // predicted shares are unchanged by construction, so the sales term only carries the
+        // inversion's rounding; it is computed anyway rather than assumed
+        out.salesDelta[c] += logJac + sampler.salesLogLikelihood(moved)
+            - sampler.salesLogLikelihood(nat);
         addStatistics(d, moved, kpsi, out.proposed[c]);
       }
     }
@@ -117,7 +124,7 @@ public final class Sweeps {
     }
   }
 
-  /** The store's contribution to the global conditionals at a local position. */
+  /** The store's contribution to the global conditionals at natural locals [psi, kappa, delta]. */
   public static void addStatistics(StoreData d, double[] position, int kpsi, GlobalStats out) {
     out.addStore(d.demographics, java.util.Arrays.copyOfRange(position, 0, kpsi));
     int np = d.products.length;

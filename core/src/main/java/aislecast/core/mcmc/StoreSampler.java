@@ -30,7 +30,6 @@ public final class StoreSampler {
   private final double[] sums;
   private final double[] varBuf;
   private final double[] kappaBuf;
-  private double[] scratch;
 
   public StoreSampler(StoreData d, double[] x, int kx) {
     this.d = d;
@@ -60,7 +59,8 @@ public final class StoreSampler {
     KappaGibbs.draw(rng, d, g, delta, sums, kappa);
     System.arraycopy(kappa, 0, pos, kpsi, np);
     StoreChainState s = new StoreChainState();
-    s.position = pos;
+    s.position = new double[pos.length];
+    target.fromNatural(pos, s.position);
     s.invMass = new double[pos.length];
     for (int k = 0; k < kpsi; k++) {
       s.invMass[k] = 0.01;
@@ -127,8 +127,15 @@ public final class StoreSampler {
     Hmc.Step st = Hmc.step(rng, state, target, eps, s.invMass, set.leapfrogSteps());
     s.position = st.state().position();
     s.logDensity = st.state().logDensity();
-    KappaGibbs.draw(rng, d, g, delta(s), sums, kappaBuf);
-    System.arraycopy(kappaBuf, 0, s.position, kpsi, kappaBuf.length);
+    // Gibbs on kappa given (psi, delta): in sampler coordinates kt = kappa + gbar(psi), a
+    // bijection at fixed (psi, eta), so this is the same exact conditional draw
+    double[] nat = natural(s.position);
+    int np = d.products.length;
+    double[] delta = java.util.Arrays.copyOfRange(nat, kpsi + np, nat.length);
+    KappaGibbs.draw(rng, d, g, delta, sums, kappaBuf);
+    for (int l = 0; l < np; l++) {
+      s.position[kpsi + l] += kappaBuf[l] - nat[kpsi + l];
+    }
     Hmc.Info info = st.info();
     if (adapting) {
       adapt(s, info, set);
@@ -167,22 +174,23 @@ public final class StoreSampler {
     }
   }
 
-  /** The sales log likelihood at a position (conditioning globals are not used). */
-  public double salesLogLikelihood(double[] position) {
-    if (scratch == null) {
-      scratch = new double[position.length];
-    }
-    return target.salesLogLikelihood(position, scratch);
+  /** The sales log likelihood at a position in natural coordinates [psi, kappa, delta]. */
+  public double salesLogLikelihood(double[] natural) {
+    return target.salesLogLikelihoodNatural(natural);
   }
 
-  /** The delta part of a state's position, copied. */
-  public double[] delta(StoreChainState s) {
-    return java.util.Arrays.copyOfRange(s.position, kpsi + d.products.length, s.position.length);
+  /** A sampler position in natural coordinates [psi, kappa, delta]; new array. */
+  public double[] natural(double[] position) {
+    double[] nat = new double[position.length];
+    target.toNatural(position, nat);
+    return nat;
   }
 
-  /** The kappa part of a state's position, copied. */
-  public double[] kappa(StoreChainState s) {
-    return java.util.Arrays.copyOfRange(s.position, kpsi, kpsi + d.products.length);
+  /** Natural coordinates back to a sampler position; new array. */
+  public double[] fromNatural(double[] natural) {
+    double[] pos = new double[natural.length];
+    target.fromNatural(natural, pos);
+    return pos;
   }
 
   public double[] psi(StoreChainState s) {

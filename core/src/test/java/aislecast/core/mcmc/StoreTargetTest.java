@@ -8,7 +8,10 @@ import aislecast.core.model.StoreData;
 import aislecast.core.model.StoreDensity;
 import org.junit.jupiter.api.Test;
 
-/** The local HMC target against the reference store density and finite differences. */
+/**
+ * The local HMC target against the reference store density (which reproduces outside test
+ * vectors) and against central finite differences of itself.
+ */
 class StoreTargetTest {
 
   @Test
@@ -19,14 +22,24 @@ class StoreTargetTest {
     for (StoreData d : f.stores()) {
       StoreTarget target = new StoreTarget(d, f.x(), f.kx());
       target.condition(f.params());
+      // natural positions a, b; the target works in its own coordinates (unit Jacobian)
       double[] a = f.position(d);
       double[] b = a.clone();
       for (int i = 0; i < b.length; i++) {
         b[i] += 0.05 * Math.sin(3.0 * i + 1);
       }
+      double[] sa = new double[a.length];
+      double[] sb = new double[a.length];
+      target.fromNatural(a, sa);
+      target.fromNatural(b, sb);
+      double[] back = new double[a.length];
+      target.toNatural(sb, back);
+      for (int i = 0; i < b.length; i++) {
+        assertEquals(b[i], back[i], 1e-12, "coordinate round trip");
+      }
       double[] grad = new double[a.length];
-      double la = target.logDensityAndGradient(a, grad);
-      double lb = target.logDensityAndGradient(b, grad);
+      double la = target.logDensityAndGradient(sa, grad);
+      double lb = target.logDensityAndGradient(sb, grad);
       double ra = full(d, f, a);
       double rb = full(d, f, b);
       assertEquals(rb - ra, lb - la, 1e-8, d.storeId);
@@ -50,7 +63,8 @@ class StoreTargetTest {
     for (StoreData d : f.stores().subList(0, 2)) {
       StoreTarget target = new StoreTarget(d, f.x(), f.kx());
       target.condition(f.params());
-      double[] pos = f.position(d);
+      double[] pos = new double[f.position(d).length];
+      target.fromNatural(f.position(d), pos);
       double[] grad = new double[pos.length];
       double[] scratch = new double[pos.length];
       target.logDensityAndGradient(pos, grad);
