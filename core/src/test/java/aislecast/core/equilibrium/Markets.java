@@ -6,22 +6,22 @@ import aislecast.core.draws.ShopperDraws;
 import java.util.SplittableRandom;
 
 /** Seeded test markets and independent profit calculations through {@link ShareKernel}. */
-final class Markets {
+public final class Markets {
   private Markets() {}
 
   /** A random-coefficients market: everything drawn from {@code seed}. */
-  static final class Rc {
-    final int r;
-    final int j;
-    final int kx;
-    final double[] psi;
-    final double[] nu;
-    final double[] x;
-    final double[] delta;
-    final int[] firm;
-    final double[] cost;
+  public static final class Rc {
+    public final int r;
+    public final int j;
+    public final int kx;
+    public final double[] psi;
+    public final double[] nu;
+    public final double[] x;
+    public final double[] delta;
+    public final int[] firm;
+    public final double[] cost;
 
-    Rc(long seed, int r, int j, int kx, int firms) {
+    public Rc(long seed, int r, int j, int kx, int firms) {
       SplittableRandom g = new SplittableRandom(seed);
       this.r = r;
       this.j = j;
@@ -50,7 +50,7 @@ final class Markets {
       }
     }
 
-    MarketModel model() {
+    public MarketModel model() {
       MarketModel m = new MarketModel(r, j);
       m.load(psi, kx, nu, r, x, j, delta, firm);
       return m;
@@ -58,7 +58,7 @@ final class Markets {
   }
 
   /** Plain logit: one shopper type with price sensitivity {@code alpha} and no tastes. */
-  static MarketModel logit(double alpha, double[] delta, int[] firm) {
+  public static MarketModel logit(double alpha, double[] delta, int[] firm) {
     int j = delta.length;
     MarketModel m = new MarketModel(1, j);
     m.loadTastes(1, j, new double[] {alpha}, new double[j], delta, firm);
@@ -69,7 +69,7 @@ final class Markets {
    * Gradient of each product's owner's profit in that product's price, {@code s_k + sum_{j in
    * f(k)} (p_j - c_j) ds_j/dp_k}, with shares and the price Jacobian from {@link ShareKernel}.
    */
-  static double[] profitGradient(MarketModel m, double[] price, double[] cost, double[] sharesOut) {
+  public static double[] profitGradient(MarketModel m, double[] price, double[] cost, double[] sharesOut) {
     int r = m.shoppers();
     int j = m.products();
     double[] v = new double[r * j];
@@ -94,7 +94,7 @@ final class Markets {
   }
 
   /** Profit of firm {@code f} at {@code price}, shares from {@link ShareKernel}. */
-  static double firmProfit(MarketModel m, double[] price, double[] cost, int f) {
+  public static double firmProfit(MarketModel m, double[] price, double[] cost, int f) {
     int r = m.shoppers();
     int j = m.products();
     double[] v = new double[r * j];
