@@ -1,27 +1,45 @@
 package aislecast.core.estimate;
 
 import aislecast.core.globals.Globals;
+import aislecast.core.mcmc.Welford;
 import java.io.Serializable;
 
 /**
  * Everything the driver carries from one sweep to the next (and checkpoints): each chain's
- * globals, the ridge move's proposal scale (adapted during warmup, fixed after), the shift the
- * stores must apply at the start of the next sweep, and counters.
+ * globals; the ridge move's proposal per chain (a scale adapted towards 25% acceptance during
+ * warmup, times the Cholesky factor of the covariance of that chain's warmup draws of the
+ * hierarchy's intercept row; both fixed after warmup); the shift the stores must apply at the
+ * start of the next sweep; and counters.
  */
 public record DriverState(
     Globals[] globals,
     double[] ridgeScale,
-    double[] pendingShift,
+    double[][] ridgeChol,
+    Welford[] ridgeHistory,
+    double[][] pendingShift,
     long[] ridgeAccepted,
     long[] ridgeProposed,
     int nextSweep)
     implements Serializable {
 
+  /** Proposal sd per component before any history: 0.05 on every psi component. */
+  static final double INITIAL_SD = 0.05;
+
   public static DriverState start(Globals[] globals) {
     int c = globals.length;
+    int k = globals[0].dims().kpsi();
     double[] scale = new double[c];
-    java.util.Arrays.fill(scale, 0.05);
-    return new DriverState(globals, scale, new double[c], new long[c], new long[c], 0);
+    double[][] chol = new double[c][k * k];
+    Welford[] hist = new Welford[c];
+    double[][] pending = new double[c][k];
+    for (int i = 0; i < c; i++) {
+      scale[i] = 1.0;
+      for (int q = 0; q < k; q++) {
+        chol[i][q * k + q] = INITIAL_SD;
+      }
+      hist[i] = new Welford(k, true);
+    }
+    return new DriverState(globals, scale, chol, hist, pending, new long[c], new long[c], 0);
   }
 
   public int chains() {

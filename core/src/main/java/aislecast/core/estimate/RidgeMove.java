@@ -37,7 +37,7 @@ public final class RidgeMove {
   private RidgeMove() {}
 
   /**
-   * Applies the shift to a local position {@code [psi, kappa, delta]} in place: {@code a += c};
+   * Applies the shift to a local position {@code [psi, kappa, delta]} in place: {@code psi += c};
    * each market's {@code delta} re-inverted so that its predicted shares stay exactly what they
    * were; each intercept moved by its rows' mean {@code delta} change.
    *
@@ -46,8 +46,8 @@ public final class RidgeMove {
    *     block-triangular in (psi, delta, kappa), so this is its whole log Jacobian. NaN when an
    *     inversion fails (the caller rejects).
    */
-  public static double apply(StoreData d, double[] x, int kx, double[] position, double c) {
-    if (c == 0.0) {
+  public static double apply(StoreData d, double[] x, int kx, double[] position, double[] c) {
+    if (c == null) {
       return 0.0;
     }
     int kpsi = Heterogeneity.dim(kx);
@@ -59,7 +59,13 @@ public final class RidgeMove {
     double[] alpha = new double[r];
     double[] mu = new double[r * jCat];
     Heterogeneity.shopperTastes(position, kx, d.nu, r, x, jCat, alpha, mu);
-    double scale = Math.exp(c);
+    double[] psiNew = java.util.Arrays.copyOf(position, kpsi);
+    for (int k = 0; k < kpsi; k++) {
+      psiNew[k] += c[k];
+    }
+    double[] alphaNew = new double[r];
+    double[] muNew = new double[r * jCat];
+    Heterogeneity.shopperTastes(psiNew, kx, d.nu, r, x, jCat, alphaNew, muNew);
     double[] vOld = new double[r * jmax];
     double[] vNew = new double[r * jmax];
     double[] del = new double[jmax];
@@ -75,10 +81,10 @@ public final class RidgeMove {
       int j = d.rowStart[t + 1] - a;
       for (int i = 0; i < r; i++) {
         for (int p = 0; p < j; p++) {
-          double m = mu[i * jCat + d.product[a + p]];
+          int prod = d.product[a + p];
           double pr = d.price[a + p];
-          vOld[i * j + p] = m - alpha[i] * pr;
-          vNew[i * j + p] = m - scale * alpha[i] * pr;
+          vOld[i * j + p] = mu[i * jCat + prod] - alpha[i] * pr;
+          vNew[i * j + p] = muNew[i * jCat + prod] - alphaNew[i] * pr;
         }
       }
       System.arraycopy(position, off + a, del, 0, j);
@@ -110,8 +116,39 @@ public final class RidgeMove {
     for (int l = 0; l < np; l++) {
       position[kpsi + l] += dsum[l] / dcount[l];
     }
-    position[0] += c;
+    System.arraycopy(psiNew, 0, position, 0, kpsi);
     return logJac;
+  }
+
+  /**
+   * Cholesky factor of {@code 2.38^2 / k} times the sample covariance of the warmup draws of the
+   * hierarchy's intercept row, plus a small ridge (Haario, Saksman and Tamminen 2001, Bernoulli 7,
+   * adaptive Metropolis; Roberts and Rosenthal 2009 for the 2.38^2/d scaling).
+   */
+  static double[] proposalFactor(aislecast.core.mcmc.Welford history, int k) {
+    double[] cov = history.covariance();
+    double f = 2.38 * 2.38 / k;
+    org.ejml.data.DMatrixRMaj m = new org.ejml.data.DMatrixRMaj(k, k);
+    for (int i = 0; i < k; i++) {
+      for (int q = 0; q < k; q++) {
+        m.set(i, q, f * cov[i * k + q] + (i == q ? 1e-6 : 0.0));
+      }
+    }
+    var chol = org.ejml.dense.row.factory.DecompositionFactory_DDRM.chol(k, true);
+    if (!chol.decompose(m)) {
+      double[] diag = new double[k * k];
+      for (int i = 0; i < k; i++) {
+        diag[i * k + i] = Math.sqrt(f * Math.max(cov[i * k + i], 0) + 1e-6);
+      }
+      return diag;
+    }
+    double[] l = new double[k * k];
+    for (int i = 0; i < k; i++) {
+      for (int q = 0; q <= i; q++) {
+        l[i * k + q] = m.get(i, q);
+      }
+    }
+    return l;
   }
 
   /** log det of a symmetric positive definite J x J matrix (row-major) by Cholesky (EJML). */

@@ -66,11 +66,25 @@ public final class Sweeps {
   /** The broadcast for the driver state's next sweep: globals, shifts to apply and to propose. */
   public static SweepInput input(DriverState st, SamplerSettings set) {
     int sweep = st.nextSweep();
-    double[] propose = new double[st.chains()];
+    double[][] propose = new double[st.chains()][];
     if (set.ridgeMove()) {
+      int k = st.globals()[0].dims().kpsi();
       for (int c = 0; c < propose.length; c++) {
-        propose[c] = st.ridgeScale()[c] * Streams.stream(set.seed(), c, -1, sweep, 3)
-            .nextGaussian();
+        SplitMix64 rng = Streams.stream(set.seed(), c, -1, sweep, 3);
+        double[] z = new double[k];
+        for (int q = 0; q < k; q++) {
+          z[q] = rng.nextGaussian();
+        }
+        double[] l = st.ridgeChol()[c];
+        double[] shift = new double[k];
+        for (int q = 0; q < k; q++) {
+          double v = 0;
+          for (int m = 0; m <= q; m++) {
+            v += l[q * k + m] * z[m];
+          }
+          shift[q] = st.ridgeScale()[c] * v;
+        }
+        propose[c] = shift;
       }
     }
     return new SweepInput(localParams(st.globals()), st.pendingShift().clone(), propose);
@@ -89,7 +103,7 @@ public final class Sweeps {
     boolean keep = sweep >= set.warmupSweeps();
     for (int c = 0; c < b.chains.length; c++) {
       StoreChainState s = b.chains[c];
-      if (in.applyShift()[c] != 0.0) {
+      if (in.applyShift()[c] != null) {
         double[] nat = sampler.natural(s.position);
         RidgeMove.apply(d, x, kx, nat, in.applyShift()[c]);
         s.position = sampler.fromNatural(nat);
@@ -108,8 +122,8 @@ public final class Sweeps {
       }
       double[] nat = sampler.natural(s.position);
       addStatistics(d, nat, kpsi, out.current[c]);
-      double shift = in.proposeShift()[c];
-      if (shift != 0.0) {
+      double[] shift = in.proposeShift()[c];
+      if (shift != null) {
         double[] moved = nat.clone();
         double logJac = RidgeMove.apply(d, x, kx, moved, shift);
         // predicted shares are unchanged by construction, so the sales term only carries the
@@ -147,18 +161,24 @@ public final class Sweeps {
       Priors priors, SamplerSettings set) {
     int sweep = st.nextSweep();
     int chains = st.chains();
+    int kpsi = st.globals()[0].dims().kpsi();
     Globals[] next = new Globals[chains];
     double[] scale = st.ridgeScale().clone();
-    double[] pending = new double[chains];
+    double[][] chol = new double[chains][];
+    aislecast.core.mcmc.Welford[] hist = new aislecast.core.mcmc.Welford[chains];
+    double[][] pending = new double[chains][];
     long[] acc = st.ridgeAccepted().clone();
     long[] prop = st.ridgeProposed().clone();
     boolean fixed = set.fixLambdaZero();
+    boolean warm = sweep < set.warmupSweeps();
     for (int c = 0; c < chains; c++) {
       Globals g = st.globals()[c];
+      chol[c] = st.ridgeChol()[c];
+      hist[c] = st.ridgeHistory()[c];
       SplitMix64 rng = driverStream(set.seed(), c, sweep);
       GlobalStats chosen = merged.current[c];
-      double shift = in.proposeShift()[c];
-      if (shift != 0.0) {
+      double[] shift = in.proposeShift()[c];
+      if (shift != null) {
         double logRatio = merged.salesDelta[c]
             + RidgeMove.collapsedLogDensity(g, merged.proposed[c], priors, fixed)
             - RidgeMove.collapsedLogDensity(g, merged.current[c], priors, fixed);
@@ -170,15 +190,23 @@ public final class Sweeps {
           pending[c] = shift;
           chosen = merged.proposed[c];
         }
-        if (sweep < set.warmupSweeps()) {
-          // Robbins-Monro on the log scale towards 40% acceptance (common practice for a
-          // one-dimensional random-walk proposal)
-          scale[c] *= Math.exp((a - 0.4) / Math.sqrt(sweep + 1.0));
+        if (warm) {
+          // Robbins-Monro on the log scale towards 25% acceptance, the usual target for a
+          // multivariate random-walk proposal (Roberts, Gelman and Gilks 1997)
+          scale[c] *= Math.exp((a - 0.25) / Math.sqrt(sweep + 1.0));
         }
       }
       next[c] = drawGlobals(g, chosen, priors, fixed, rng);
+      if (warm && set.ridgeMove()) {
+        hist[c] = hist[c].copy();
+        double[] row0 = java.util.Arrays.copyOf(next[c].gammaPsi(), kpsi);
+        hist[c].add(row0);
+        if (hist[c].count() >= 20 && sweep % 10 == 9) {
+          chol[c] = RidgeMove.proposalFactor(hist[c], kpsi);
+        }
+      }
     }
-    return new DriverState(next, scale, pending, acc, prop, sweep + 1);
+    return new DriverState(next, scale, chol, hist, pending, acc, prop, sweep + 1);
   }
 
   /**

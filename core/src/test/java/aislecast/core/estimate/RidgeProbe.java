@@ -22,7 +22,7 @@ public final class RidgeProbe {
         StoreSampler sm = new StoreSampler(d, f.x(), f.kx());
         double[] pos = sm.natural(b.chains[0].position);
         double[] moved = pos.clone();
-        double lj = RidgeMove.apply(d, f.x(), f.kx(), moved, c);
+        double lj = RidgeMove.apply(d, f.x(), f.kx(), moved, new double[] {c, 0, 0, 0, 0});
         sales += lj + sm.salesLogLikelihood(moved) - sm.salesLogLikelihood(pos);
         Sweeps.addStatistics(d, pos, 5, cur.current[0]);
         Sweeps.addStatistics(d, moved, 5, prop.current[0]);
