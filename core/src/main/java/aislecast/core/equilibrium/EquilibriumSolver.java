@@ -166,19 +166,24 @@ public final class EquilibriumSolver {
     final int f = m.firms();
     final int[] firm = m.firmIndex();
     final double[] alpha = m.alpha();
-    outside = m.shares(price, shares, probs);
     for (int p = 0; p < j; p++) {
       markup[p] = price[p] - cost[p];
+      shares[p] = 0.0;
       lambda[p] = 0.0;
       rho[p] = 0.0;
     }
+    double out = 0.0;
+    // one pass per shopper: probabilities, then its firm sums g_rf, then Lambda and rho terms
     for (int i = 0; i < r; i++) {
       int o = i * j;
+      out += m.probabilities(i, price, probs, o);
       for (int q = 0; q < f; q++) {
         firmSum[q] = 0.0;
       }
       for (int p = 0; p < j; p++) {
-        firmSum[firm[p]] += probs[o + p] * markup[p];
+        double pr = probs[o + p];
+        shares[p] += pr;
+        firmSum[firm[p]] += pr * markup[p];
       }
       double a = alpha[i];
       for (int p = 0; p < j; p++) {
@@ -188,7 +193,9 @@ public final class EquilibriumSolver {
       }
     }
     double invR = 1.0 / r;
+    outside = out * invR;
     for (int p = 0; p < j; p++) {
+      shares[p] *= invR;
       lambda[p] *= invR;
       rho[p] *= invR;
     }

@@ -160,9 +160,16 @@ public final class MarketModel {
     System.arraycopy(delta, 0, out, 0, j);
   }
 
+  /** Price-free utilities {@code delta_j + mu_rj}, R x J; for the solvers of this package. */
+  double[] baseUtility() {
+    return base;
+  }
+
   /**
-   * Shares at the given prices, stable at any utility (the outside option's 0 bounds the row
-   * maximum from below).
+   * Shares at the given prices. Each shopper's row is exponentiated directly (the outside option's
+   * 1 keeps the denominator >= 1, so underflow only loses probabilities below 1e-308); a row that
+   * overflows is redone with its maximum factored out ({@link #probabilities}), so any utility
+   * works.
    *
    * @param price length J, not modified
    * @param sharesOut length J, modified
@@ -171,46 +178,67 @@ public final class MarketModel {
    */
   public double shares(double[] price, double[] sharesOut, double[] probsOut) {
     final int jj = j;
+    final double[] e = row;
     for (int p = 0; p < jj; p++) {
       sharesOut[p] = 0.0;
     }
     double outside = 0.0;
     for (int i = 0; i < r; i++) {
       int o = i * jj;
-      double a = alpha[i];
-      double m = 0.0;
+      double[] out = probsOut != null ? probsOut : e;
+      int off = probsOut != null ? o : 0;
+      double p0 = probabilities(i, price, out, off);
       for (int p = 0; p < jj; p++) {
-        double u = base[o + p] - a * price[p];
-        row[p] = u;
-        if (u > m) {
-          m = u;
-        }
+        sharesOut[p] += out[off + p];
       }
-      double e0 = m == 0.0 ? 1.0 : Math.exp(-m);
-      double den = e0;
-      for (int p = 0; p < jj; p++) {
-        double e = Math.exp(row[p] - m);
-        row[p] = e;
-        den += e;
-      }
-      double inv = 1.0 / den;
-      if (probsOut != null) {
-        for (int p = 0; p < jj; p++) {
-          double pr = row[p] * inv;
-          probsOut[o + p] = pr;
-          sharesOut[p] += pr;
-        }
-      } else {
-        for (int p = 0; p < jj; p++) {
-          sharesOut[p] += row[p] * inv;
-        }
-      }
-      outside += e0 * inv;
+      outside += p0;
     }
     double invR = 1.0 / r;
     for (int p = 0; p < jj; p++) {
       sharesOut[p] *= invR;
     }
     return outside * invR;
+  }
+
+  /**
+   * Shopper i's choice probabilities at {@code price}.
+   *
+   * @param probOut modified at {@code off .. off + J - 1}
+   * @return the shopper's outside-option probability
+   */
+  double probabilities(int i, double[] price, double[] probOut, int off) {
+    final int jj = j;
+    final int o = i * jj;
+    final double a = alpha[i];
+    double den = 1.0;
+    for (int p = 0; p < jj; p++) {
+      double ex = Math.exp(base[o + p] - a * price[p]);
+      probOut[off + p] = ex;
+      den += ex;
+    }
+    if (den < Double.POSITIVE_INFINITY) {
+      double inv = 1.0 / den;
+      for (int p = 0; p < jj; p++) {
+        probOut[off + p] *= inv;
+      }
+      return inv;
+    }
+    // overflow (or NaN): factor out m = max(0, max_j u_ij)
+    double m = 0.0;
+    for (int p = 0; p < jj; p++) {
+      m = Math.max(m, base[o + p] - a * price[p]);
+    }
+    double e0 = Math.exp(-m);
+    den = e0;
+    for (int p = 0; p < jj; p++) {
+      double ex = Math.exp(base[o + p] - a * price[p] - m);
+      probOut[off + p] = ex;
+      den += ex;
+    }
+    double inv = 1.0 / den;
+    for (int p = 0; p < jj; p++) {
+      probOut[off + p] *= inv;
+    }
+    return e0 * inv;
   }
 }
