@@ -41,11 +41,25 @@ public final class SparkSessions {
             .config("spark.ui.showConsoleProgress", "false")
             .config("spark.sql.session.timeZone", "UTC");
     if (resolved.startsWith("local") && System.getProperty("spark.sql.shuffle.partitions") == null) {
-      builder.config("spark.sql.shuffle.partitions", "4");
+      // Spark's default of 200 shuffle partitions is sized for clusters; on one machine use one
+      // per core.
+      builder.config("spark.sql.shuffle.partitions", Integer.toString(localCores(resolved)));
     }
     SparkSession spark = builder.getOrCreate();
     spark.sparkContext().setLogLevel("WARN");
     return new Handle(spark, true);
+  }
+
+  /** Cores of a local master URL: local -> 1, local[N] or local[N,F] -> N, local[*] -> all. */
+  static int localCores(String master) {
+    java.util.regex.Matcher m =
+        java.util.regex.Pattern.compile("local\\[(\\d+|\\*)(,\\d+)?\\]").matcher(master);
+    if (m.matches()) {
+      return m.group(1).equals("*")
+          ? Runtime.getRuntime().availableProcessors()
+          : Math.max(1, Integer.parseInt(m.group(1)));
+    }
+    return master.equals("local") ? 1 : Runtime.getRuntime().availableProcessors();
   }
 
   /** Spark's INFO logging drowns the command's own output; keep warnings and errors only. */

@@ -1,5 +1,6 @@
 package aislecast.jobs.validate;
 
+import static org.apache.spark.sql.functions.broadcast;
 import static org.apache.spark.sql.functions.coalesce;
 import static org.apache.spark.sql.functions.col;
 import static org.apache.spark.sql.functions.concat;
@@ -53,16 +54,21 @@ import org.apache.spark.storage.StorageLevel;
  * <ol>
  *   <li>per field, in column order: missing, malformed, non-finite, range (see {@link FieldKind});
  *   <li>products, stores: duplicate key (every copy rejected);
- *   <li>traffic: duplicate store-week, unknown store;
+ *   <li>traffic: duplicate store-week, unknown store, store-week without any sales row
+ *       ({@code market_without_products});
  *   <li>sales: duplicate store-week-product, unknown store, unknown product, rejected traffic row
  *       for the store-week ({@code market_size_unavailable}), then units summed over the
  *       store-week's remaining rows above the market size ({@code units_above_market_size}: every
  *       row of that market is rejected, because dropping some products would distort the others'
  *       shares);
- *   <li>traffic rows whose store-week has no accepted sales ({@code market_without_products});
- *       stores with no accepted sales at all ({@code store_without_markets});
+ *   <li>stores without any sales row ({@code store_without_markets});
  *   <li>shopper_draws: duplicate store-draw, store not accepted.
  * </ol>
+ *
+ * <p>"Without products" and "without markets" look at every sales row with a key, accepted or
+ * not: a traffic or store row is rejected only for its own fault, never because the sales of its
+ * market were rejected for theirs. So an accepted store or traffic row may have no accepted sales;
+ * jobs drive from the accepted sales and simply do not see it.
  *
  * <p>The market size of a store-week is the accepted traffic row's shoppers if there is one,
  * else the store's shoppers. Products without sales are kept (they may be used in scenarios).
@@ -147,39 +153,46 @@ public final class InputValidator {
 
     List<Dataset<Row>> persisted = new ArrayList<>();
     List<Dataset<Row>> intermediate = new ArrayList<>();
+    Map<String, Dataset<Row>> parsedByTable = new HashMap<>();
 
-    Dataset<Row> products = rejectDuplicates(parse(spark, productsRaw, productsSpec, intermediate),
+    Dataset<Row> products = rejectDuplicates(parse(spark, productsRaw, productsSpec, intermediate, parsedByTable),
         "product_id");
     products = keep(products, persisted);
     Dataset<Row> acceptedProducts = accepted(products);
 
     Dataset<Row> storesChecked =
-        keep(rejectDuplicates(parse(spark, storesRaw, storesSpec, intermediate), "store_id"),
+        keep(rejectDuplicates(parse(spark, storesRaw, storesSpec, intermediate, parsedByTable), "store_id"),
             intermediate);
     Dataset<Row> knownStores = accepted(storesChecked);
 
+    Dataset<Row> sales = parse(spark, salesRaw, salesSpec, intermediate, parsedByTable);
+    Dataset<Row> salesKeys = sales.filter(col("store_id").isNotNull()).select("store_id", "week");
+
     Dataset<Row> traffic = null;
     if (trafficSpec != null) {
-      traffic = parse(spark, trafficRaw.get(), trafficSpec, intermediate);
+      traffic = parse(spark, trafficRaw.get(), trafficSpec, intermediate, parsedByTable);
       traffic = rejectDuplicates(traffic, "store_id", "week");
       traffic = flagByMatch(traffic, knownStores.select("store_id"), false,
           RejectReason.UNKNOWN_STORE,
           concat(lit("store_id '"), col("store_id"), lit("' is not among the accepted stores")),
-          "store_id");
-      traffic = keep(traffic, intermediate);
+          true, "store_id");
+      traffic = flagByMatch(traffic, salesKeys, false, RejectReason.MARKET_WITHOUT_PRODUCTS,
+          concat(lit("store_id '"), col("store_id"), lit("' week "), col("week"),
+              lit(" has no sales rows (no products on the shelf)")),
+          false, "store_id", "week");
+      traffic = keep(traffic, persisted);
     }
 
-    Dataset<Row> sales = parse(spark, salesRaw, salesSpec, intermediate);
     sales = rejectDuplicates(sales, "store_id", "week", "product_id");
     sales = flagByMatch(sales, knownStores.select("store_id"), false, RejectReason.UNKNOWN_STORE,
         concat(lit("store_id '"), col("store_id"),
             lit("' is not among the accepted stores (absent from stores or rejected there)")),
-        "store_id");
+        true, "store_id");
     sales = flagByMatch(sales, acceptedProducts.select("product_id"), false,
         RejectReason.UNKNOWN_PRODUCT,
         concat(lit("product_id '"), col("product_id"),
             lit("' is not among the accepted products (absent from products or rejected there)")),
-        "product_id");
+        true, "product_id");
     Column trafficSize = lit(null).cast(DataTypes.LongType);
     if (traffic != null) {
       Dataset<Row> rejectedTraffic =
@@ -188,16 +201,16 @@ public final class InputValidator {
       sales = flagByMatch(sales, rejectedTraffic, true, RejectReason.MARKET_SIZE_UNAVAILABLE,
           concat(lit("the traffic row for store_id '"), col("store_id"), lit("' week "),
               col("week"), lit(" was rejected, so the market size is unknown")),
-          "store_id", "week");
+          true, "store_id", "week");
       Dataset<Row> t = accepted(traffic).select(col("store_id").as("_t_store"),
           col("week").as("_t_week"), col("shoppers").as("_t_size"));
-      sales = sales.join(t, col("store_id").equalTo(col("_t_store"))
+      sales = sales.join(broadcast(t), col("store_id").equalTo(col("_t_store"))
           .and(col("week").equalTo(col("_t_week"))), "left").drop("_t_store", "_t_week");
       trafficSize = col("_t_size");
     }
     Dataset<Row> storeSizes =
         knownStores.select(col("store_id").as("_s_store"), col("shoppers").as("_s_size"));
-    sales = sales.join(storeSizes, col("store_id").equalTo(col("_s_store")), "left")
+    sales = sales.join(broadcast(storeSizes), col("store_id").equalTo(col("_s_store")), "left")
         .drop("_s_store");
     if (traffic == null) {
       sales = sales.withColumn("_t_size", trafficSize);
@@ -219,31 +232,23 @@ public final class InputValidator {
     sales = keep(sales, persisted);
     Dataset<Row> acceptedSales = accepted(sales);
 
-    if (traffic != null) {
-      traffic = flagByMatch(traffic, acceptedSales.select("store_id", "week"), false,
-          RejectReason.MARKET_WITHOUT_PRODUCTS,
-          concat(lit("store_id '"), col("store_id"), lit("' week "), col("week"),
-              lit(" has no accepted sales rows (no products on the shelf)")),
-          "store_id", "week");
-      traffic = keep(traffic, persisted);
-    }
-    Dataset<Row> stores = flagByMatch(storesChecked, acceptedSales.select("store_id"), false,
+    Dataset<Row> stores = flagByMatch(storesChecked, salesKeys.select("store_id"), false,
         RejectReason.STORE_WITHOUT_MARKETS,
         concat(lit("store_id '"), col("store_id"),
-            lit("' has no accepted sales rows, so it has no market to estimate")),
-        "store_id");
+            lit("' has no sales rows, so it has no market to estimate")),
+        false, "store_id");
     stores = keep(stores, persisted);
 
     Dataset<Row> draws = null;
     if (drawsSpec != null) {
-      draws = parse(spark, drawsRaw.get(), drawsSpec, intermediate);
+      draws = parse(spark, drawsRaw.get(), drawsSpec, intermediate, parsedByTable);
       draws = rejectDuplicates(draws, "store_id", "draw");
       draws = flagByMatch(draws, accepted(stores).select("store_id"), false,
           RejectReason.UNKNOWN_STORE,
           concat(lit("store_id '"), col("store_id"),
               lit("' is not among the accepted stores (draw "), col("draw").cast("string"),
               lit(")")),
-          "store_id");
+          true, "store_id");
       draws = keep(draws, persisted);
     }
 
@@ -257,13 +262,7 @@ public final class InputValidator {
     if (draws != null) {
       finals.put(SHOPPER_DRAWS, draws);
     }
-    Map<String, RawTable> raws = new LinkedHashMap<>();
-    raws.put(SALES, salesRaw);
-    raws.put(PRODUCTS, productsRaw);
-    raws.put(STORES, storesRaw);
-    trafficRaw.ifPresent(t -> raws.put(TRAFFIC, t));
-    drawsRaw.ifPresent(t -> raws.put(SHOPPER_DRAWS, t));
-    ValidationSummary summary = count(finals, raws);
+    ValidationSummary summary = count(finals, parsedByTable);
     if (summary.table(SALES).inputRows() == 0) {
       unpersistAll(persisted);
       unpersistAll(intermediate);
@@ -289,8 +288,8 @@ public final class InputValidator {
   }
 
   /** Reads raw rows into the parsed schema, numbering rows 1.. in file order. */
-  private static Dataset<Row> parse(
-      SparkSession spark, RawTable raw, TableSpec spec, List<Dataset<Row>> persisted) {
+  private static Dataset<Row> parse(SparkSession spark, RawTable raw, TableSpec spec,
+      List<Dataset<Row>> persisted, Map<String, Dataset<Row>> byTable) {
     StructType rawSchema = raw.rows().schema();
     List<Column> select = new ArrayList<>();
     for (TableSpec.Field f : spec.fields()) {
@@ -310,7 +309,9 @@ public final class InputValidator {
     JavaRDD<Row> rows = raw.rows().select(select.toArray(new Column[0])).javaRDD()
         .zipWithIndex()
         .map(t -> parser.parse(t._1(), t._2()));
-    return keep(spark.createDataFrame(rows, spec.parsedSchema()), persisted);
+    Dataset<Row> parsed = keep(spark.createDataFrame(rows, spec.parsedSchema()), persisted);
+    byTable.put(spec.table(), parsed);
+    return parsed;
   }
 
   private static Dataset<Row> keep(Dataset<Row> d, List<Dataset<Row>> list) {
@@ -362,7 +363,7 @@ public final class InputValidator {
    * it ({@code whenMatched} true). {@code keys} holds exactly the key columns.
    */
   private static Dataset<Row> flagByMatch(Dataset<Row> d, Dataset<Row> keys, boolean whenMatched,
-      RejectReason reason, Column message, String... keyNames) {
+      RejectReason reason, Column message, boolean small, String... keyNames) {
     List<Column> renamed = new ArrayList<>();
     Column on = lit(true);
     for (String k : keyNames) {
@@ -371,7 +372,9 @@ public final class InputValidator {
     }
     renamed.add(lit(true).as("_m"));
     Dataset<Row> right = keys.distinct().select(renamed.toArray(new Column[0]));
-    Dataset<Row> joined = d.join(right, on, "left");
+    // Key sets of stores, products and traffic are small: broadcast them rather than shuffle
+    // the sales table.
+    Dataset<Row> joined = d.join(small ? broadcast(right) : right, on, "left");
     Column cond = whenMatched ? col("_m").isNotNull() : col("_m").isNull();
     Dataset<Row> out = flag(joined, cond, reason, message).drop("_m");
     for (String k : keyNames) {
@@ -394,11 +397,21 @@ public final class InputValidator {
   }
 
   /**
-   * Counts outcomes per table and checks them against an independent count of the raw rows, so
-   * a row lost or duplicated by a join fails the run instead of going unnoticed.
+   * Counts outcomes per table and checks them against a separate count of the rows as read (the
+   * row parser maps rows one to one), so a row lost or duplicated by a join or window fails the
+   * run instead of going unnoticed.
    */
   private static ValidationSummary count(
-      Map<String, Dataset<Row>> finals, Map<String, RawTable> raws) {
+      Map<String, Dataset<Row>> finals, Map<String, Dataset<Row>> parsed) {
+    Dataset<Row> read = null;
+    for (String table : finals.keySet()) {
+      Dataset<Row> part = parsed.get(table).select(lit(table).as("table"));
+      read = read == null ? part : read.unionAll(part);
+    }
+    Map<String, Long> inputRows = new HashMap<>();
+    for (Row r : read.groupBy("table").count().collectAsList()) {
+      inputRows.put(r.getString(0), r.getLong(1));
+    }
     Dataset<Row> all = null;
     for (Map.Entry<String, Dataset<Row>> e : finals.entrySet()) {
       Dataset<Row> part = e.getValue().select(lit(e.getKey()).as("table"), col(R));
@@ -421,7 +434,7 @@ public final class InputValidator {
       long acc = accepted.getOrDefault(table, new long[1])[0];
       Map<String, Long> rej = rejected.getOrDefault(table, Map.of());
       long rejTotal = rej.values().stream().mapToLong(Long::longValue).sum();
-      long input = raws.get(table).rows().count();
+      long input = inputRows.getOrDefault(table, 0L);
       if (acc + rejTotal != input) {
         throw new IllegalStateException("validation of table " + table + " accounted for "
             + (acc + rejTotal) + " rows (" + acc + " accepted, " + rejTotal + " rejected) but "

@@ -3,8 +3,8 @@ package aislecast.jobs.validate;
 /**
  * Why a row was rejected. The code is what {@code validation/rejects.reason} holds. A row gets
  * one reason: the first check it fails, in this order: per-field checks in column order, then
- * duplicates, unknown store/product, market-size checks, and last the checks that depend on the
- * accepted sales (markets without products, stores without markets).
+ * duplicates, unknown store/product, markets without products, market-size checks, stores
+ * without markets; see {@link InputValidator} for the exact order.
  */
 public enum RejectReason {
   MISSING_VALUE("missing_value", "a required value is empty"),
@@ -31,8 +31,8 @@ public enum RejectReason {
       "units_above_market_size",
       "units of the store-week sum above its market size (every row of that market is rejected)"),
   MARKET_WITHOUT_PRODUCTS(
-      "market_without_products", "traffic row for a store-week with no accepted sales rows"),
-  STORE_WITHOUT_MARKETS("store_without_markets", "store with no accepted sales rows");
+      "market_without_products", "traffic row for a store-week that has no sales rows at all"),
+  STORE_WITHOUT_MARKETS("store_without_markets", "store that has no sales rows at all");
 
   private final String code;
   private final String description;
