@@ -198,4 +198,35 @@ class EquilibriumSolverTest {
     SolveInfo held = solver.solve(m, cost, free, price);
     assertTrue(held.converged(), held.toString());
   }
+
+  /**
+   * MarketModel's shares (direct exponentials with an overflow fallback) equal ShareKernel's
+   * log-sum-exp shares, for ordinary utilities and for utilities that overflow exp (800).
+   */
+  @Test
+  void sharesMatchShareKernelIncludingOverflow() {
+    for (double shift : new double[] {0.0, 800.0, -800.0}) {
+      Markets.Rc mk = new Markets.Rc(41, 100, 7, 2, 3);
+      double[] delta = mk.delta.clone();
+      for (int p = 0; p < 7; p++) {
+        delta[p] += shift;
+      }
+      MarketModel m = new MarketModel(100, 7);
+      m.load(mk.psi, mk.kx, mk.nu, 100, mk.x, 7, delta, mk.firm);
+      double[] price = {1, 2, 3, 1.5, 2.5, 0.5, 1};
+      double[] s = new double[7];
+      double[] probs = new double[700];
+      double outside = m.shares(price, s, probs);
+      double[] v = new double[700];
+      m.shopperUtility(price, v);
+      double[] ref = new double[7];
+      double[] refProbs = new double[700];
+      double refOutside = aislecast.core.demand.ShareKernel.shares(100, 7, delta, v, ref, refProbs);
+      // at |u| ~ 800 both lose about 800 ulps to the shift itself
+      double tol = shift == 0.0 ? 1e-14 : 1e-12;
+      assertArrayEquals(ref, s, tol);
+      assertArrayEquals(refProbs, probs, tol);
+      assertEquals(refOutside, outside, tol);
+    }
+  }
 }
