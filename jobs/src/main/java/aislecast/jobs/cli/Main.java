@@ -16,6 +16,8 @@ import picocli.CommandLine.Spec;
       ValidateCommand.class,
       EstimateCommand.class,
       GenerateCommand.class,
+      ScenariosCommand.class,
+      RecommendCommand.class,
       DemoCommand.class,
       CommandLine.HelpCommand.class
     })

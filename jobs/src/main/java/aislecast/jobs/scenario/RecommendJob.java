@@ -1,0 +1,220 @@
+package aislecast.jobs.scenario;
+
+import aislecast.core.demand.ShareInversion;
+import aislecast.core.equilibrium.EquilibriumSettings;
+import aislecast.core.scenario.BaseDraw;
+import aislecast.core.scenario.BaseMarket;
+import aislecast.core.scenario.BaseUtilities;
+import aislecast.core.scenario.PortfolioPricer;
+import aislecast.core.scenario.Response;
+import aislecast.core.scenario.ScenarioEvaluator;
+import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.config.RunFailure;
+import aislecast.jobs.io.RunDirectory;
+import aislecast.jobs.validate.InputValidator;
+import aislecast.jobs.validate.ValidatedInput;
+import java.io.PrintWriter;
+import java.util.ArrayList;
+import java.util.LinkedHashMap;
+import java.util.List;
+import java.util.Locale;
+import java.util.Map;
+import org.apache.commons.math3.stat.descriptive.rank.Percentile;
+import org.apache.spark.api.java.JavaRDD;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.RowFactory;
+import org.apache.spark.sql.SaveMode;
+import org.apache.spark.sql.SparkSession;
+import org.apache.spark.sql.types.DataType;
+import org.apache.spark.sql.types.DataTypes;
+import org.apache.spark.sql.types.StructField;
+import org.apache.spark.sql.types.StructType;
+
+/**
+ * {@code aislecast recommend}: per store, the portfolio prices within guard-rails that maximise
+ * the posterior mean (or a quantile) of the portfolio margin change, with the competitors'
+ * response ({@link PortfolioPricer}); one Spark task per group of stores. Writes {@code
+ * recommendations/} and {@code run.json} in a run folder published whole.
+ */
+public final class RecommendJob {
+  static final String RECOMMENDATIONS = "recommendations";
+
+  private RecommendJob() {}
+
+  /**
+   * @param quantile NaN to maximise the mean margin change, else the quantile level
+   * @param draws posterior draws to use (0 = all)
+   */
+  public record Options(String input, String outputRoot, String runId, String posterior,
+      int baseWeeks, int draws, List<String> portfolio, double maxMove, double quantile,
+      Response response) {}
+
+  private static StructField f(String name, DataType type, boolean nullable) {
+    return DataTypes.createStructField(name, type, nullable);
+  }
+
+  /**
+   * One row per store and portfolio product. The margin, revenue and units figures are the
+   * store's whole portfolio at the recommended prices against the base (the same on every
+   * product row of a store): posterior mean and 5/50/95% quantiles of the margin change, the
+   * probability that it is positive.
+   */
+  static final StructType SCHEMA = DataTypes.createStructType(List.of(
+      f("store_id", DataTypes.StringType, false), f("region", DataTypes.StringType, true),
+      f("product_id", DataTypes.StringType, false), f("owner", DataTypes.StringType, false),
+      f("current_price", DataTypes.DoubleType, false),
+      f("recommended_price", DataTypes.DoubleType, false),
+      f("change_pct", DataTypes.DoubleType, false),
+      f("lower_price", DataTypes.DoubleType, false),
+      f("upper_price", DataTypes.DoubleType, false),
+      f("mean_cost", DataTypes.DoubleType, false),
+      f("response", DataTypes.StringType, false), f("objective", DataTypes.StringType, false),
+      f("draws", DataTypes.IntegerType, false), f("skipped_draws", DataTypes.IntegerType, false),
+      f("failed_solves", DataTypes.IntegerType, false),
+      f("margin_change_mean", DataTypes.DoubleType, false),
+      f("margin_change_q05", DataTypes.DoubleType, false),
+      f("margin_change_q50", DataTypes.DoubleType, false),
+      f("margin_change_q95", DataTypes.DoubleType, false),
+      f("prob_gain", DataTypes.DoubleType, false),
+      f("revenue_change_mean", DataTypes.DoubleType, false),
+      f("units_change_mean", DataTypes.DoubleType, false),
+      f("evaluations", DataTypes.IntegerType, false)));
+
+  public record Result(String runDir, int stores, int draws, long rows,
+      Map<String, Double> seconds) {}
+
+  public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
+    Map<String, Double> seconds = new LinkedHashMap<>();
+    long t0 = System.nanoTime();
+    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId());
+    try {
+      String dir = run.staging();
+      PosteriorRun posterior = PosteriorRun.open(spark, o.posterior());
+      ScenarioInputs.Prepared prep;
+      try (ValidatedInput validated = InputValidator.run(spark, config, o.input(), dir)) {
+        validated.requireRejectShareAtMost(config.validation().maxRejectShare(),
+            "the rejects table (run 'aislecast validate' on this input to publish it)");
+        prep = ScenarioInputs.prepare(spark, config, validated, posterior, o.baseWeeks(),
+            o.portfolio());
+      }
+      for (String owner : o.portfolio()) {
+        boolean found = false;
+        for (int p = 0; p < prep.catalog().size(); p++) {
+          found |= prep.catalog().owner(p).equals(owner);
+        }
+        if (!found) {
+          throw new RunFailure(RunFailure.BAD_INPUT, "--portfolio: owner '" + owner
+              + "' owns no product in the input");
+        }
+      }
+      PosteriorRun.Selection sel = posterior.select(spark, o.draws());
+      String objective = Double.isNaN(o.quantile()) ? "mean"
+          : String.format(Locale.ROOT, "q%02d", Math.round(100 * o.quantile()));
+      out.printf(Locale.ROOT, "recommend: %d stores x %d draws (of %d), max move %.1f%%,"
+          + " objective %s, response %s%n", prep.stores().size(), sel.size(), sel.available(),
+          100 * o.maxMove(), objective, o.response().name().toLowerCase(Locale.ROOT));
+      out.flush();
+      seconds.put("prepare", secondsSince(t0));
+      long t1 = System.nanoTime();
+      // core settings records are not serialisable: ship the primitives, build them per task
+      double maxMove = o.maxMove();
+      double quantile = o.quantile();
+      Response response = o.response();
+      JavaRDD<StoreWork> work = ScenarioInputs.withDraws(spark, prep.stores(), posterior, sel,
+          prep.catalog().attributes());
+      JavaRDD<Row> rows = work.flatMap(w -> recommend(w, new PortfolioPricer.Settings(maxMove,
+          quantile, response, EquilibriumSettings.defaults(), 2000), objective).iterator());
+      spark.createDataFrame(rows, SCHEMA).coalesce(1).write().mode(SaveMode.ErrorIfExists)
+          .parquet(dir + "/" + RECOMMENDATIONS);
+      long count = spark.read().parquet(dir + "/" + RECOMMENDATIONS).count();
+      seconds.put("optimise", secondsSince(t1));
+      seconds.put("total", secondsSince(t0));
+      Map<String, Object> m = RunManifest.header(spark, "recommend", o.runId(), o.input(),
+          o.posterior(), posterior);
+      m.put("portfolio", o.portfolio());
+      m.put("base_weeks", o.baseWeeks());
+      m.put("max_move", o.maxMove());
+      m.put("objective", objective);
+      m.put("response", o.response().name().toLowerCase(Locale.ROOT));
+      m.put("stores", prep.stores().size());
+      m.put("draws", sel.size());
+      m.put("draws_available", sel.available());
+      m.put("rows", count);
+      m.put("notes", prep.notes());
+      m.put("timings_seconds", seconds);
+      RunManifest.write(spark, dir, m);
+      run.commit();
+      out.println("Outputs in " + run.target() + ":");
+      out.println("  " + RECOMMENDATIONS);
+      out.println("  validation/rejects");
+      out.println("  " + RunManifest.RUN_JSON);
+      out.flush();
+      return new Result(run.target(), prep.stores().size(), sel.size(), count, seconds);
+    } finally {
+      run.abort();
+    }
+  }
+
+  private static double secondsSince(long t0) {
+    return (System.nanoTime() - t0) / 1e9;
+  }
+
+  /** One store's recommendation rows (none when the store stocks no portfolio product). */
+  static List<Row> recommend(StoreWork w, PortfolioPricer.Settings settings, String objective) {
+    BaseMarket market = w.market();
+    int j = w.products();
+    List<Row> rows = new ArrayList<>();
+    boolean any = false;
+    for (String owner : w.owners()) {
+      any |= market.inPortfolio(owner);
+    }
+    if (!any) {
+      return rows;
+    }
+    ScenarioEvaluator ev = new ScenarioEvaluator(w.shoppers(), j, EquilibriumSettings.defaults(),
+        false);
+    BaseUtilities inverter = new BaseUtilities(w.shoppers(), j);
+    double[] observed = BaseUtilities.observedShares(w.units(), w.marketSize());
+    List<BaseDraw> draws = new ArrayList<>();
+    int skipped = 0;
+    for (int d = 0; d < w.draws(); d++) {
+      double[] delta = new double[j];
+      ShareInversion.Result inv = inverter.invert(market, w.psi()[d], observed, delta);
+      if (!inv.converged()) {
+        skipped++;
+        continue;
+      }
+      draws.add(ev.base(market, w.psi()[d], delta));
+    }
+    if (draws.isEmpty()) {
+      return rows;
+    }
+    PortfolioPricer.Result r = new PortfolioPricer(w.shoppers(), j).recommend(draws, settings);
+    double[] mc = r.marginChange();
+    Percentile pct = new Percentile().withEstimationType(Percentile.EstimationType.R_7);
+    pct.setData(mc);
+    double gain = 0;
+    for (double v : mc) {
+      gain += v > 0 ? 1 : 0;
+    }
+    String response = settings.response().name().toLowerCase(Locale.ROOT);
+    for (int q = 0; q < r.productIds().length; q++) {
+      int p = market.indexOf(r.productIds()[q]);
+      rows.add(RowFactory.create(w.storeId(), w.region(), r.productIds()[q], market.owner(p),
+          r.current()[q], r.recommended()[q], 100 * (r.recommended()[q] / r.current()[q] - 1),
+          r.lower()[q], r.upper()[q], r.meanCost()[q], response, objective, r.draws(),
+          r.skippedDraws() + skipped, r.failedSolves(), mean(mc), pct.evaluate(5),
+          pct.evaluate(50), pct.evaluate(95), gain / mc.length, mean(r.revenueChange()),
+          mean(r.unitsChange()), r.evaluations()));
+    }
+    return rows;
+  }
+
+  private static double mean(double[] v) {
+    double s = 0;
+    for (double x : v) {
+      s += x;
+    }
+    return s / v.length;
+  }
+}
