@@ -134,7 +134,8 @@ final class ScenarioTables {
         "  percentile(change, 0.05) AS q05, percentile(change, 0.25) AS q25,",
         "  percentile(change, 0.5) AS q50, percentile(change, 0.75) AS q75,",
         "  percentile(change, 0.95) AS q95,",
-        "  avg(CASE WHEN change > 0 THEN 1.0 ELSE 0.0 END) AS prob_gain");
+        "  avg(CASE WHEN change > 0 THEN CAST(1 AS DOUBLE) ELSE CAST(0 AS DOUBLE) END)"
+            + " AS prob_gain");
   }
 
   /** Per scenario and store: failures and counts, never hidden. */

@@ -1,0 +1,374 @@
+package aislecast.jobs.scenario;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import aislecast.core.scenario.Response;
+import aislecast.core.sim.DemandSimulator;
+import aislecast.core.sim.SimSettings;
+import aislecast.core.sim.SimWriter;
+import aislecast.core.sim.SimulatedData;
+import aislecast.jobs.cli.Main;
+import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.spark.SparkSessions;
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.sql.Connection;
+import java.sql.DriverManager;
+import java.sql.ResultSet;
+import java.sql.Statement;
+import java.util.ArrayList;
+import java.util.Arrays;
+import java.util.HashMap;
+import java.util.List;
+import java.util.Map;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.SparkSession;
+import org.junit.jupiter.api.AfterAll;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+import picocli.CommandLine;
+
+/**
+ * End-to-end runs of {@code aislecast scenarios} and {@code aislecast recommend} on a small data
+ * set simulated from the model (6 stores, 4 weeks, 8 products, 3 owners, 2 attributes, 40
+ * shopper draws) with a 2 x 3-draw posterior built from the simulator's truth
+ * ({@link TruthPosterior}). Outputs are read back with DuckDB, an SQL engine independent of Spark.
+ */
+class ScenariosJobTest {
+  private static final long SEED = 4242L;
+
+  @TempDir static Path tmp;
+  static SparkSession spark;
+  static SimulatedData sim;
+  static Path input;
+  static Path posterior;
+  static Path scenarioFile;
+  static String runDir;
+  static String portfolio;
+
+  @BeforeAll
+  static void runScenarios() throws Exception {
+    spark = SparkSessions.open("local[2]", "scenarios-test").spark();
+    sim = DemandSimulator.simulate(SimSettings.demo().withSizes(6, 4, 8, 3, 2, 40));
+    input = tmp.resolve("in");
+    SimWriter.write(sim, input, false);
+    posterior = tmp.resolve("post");
+    TruthPosterior.write(spark, sim, posterior, 2, 3, SEED);
+    portfolio = sim.ownerNames[0];
+    String own = firstProductOf(0);
+    String rival = firstProductOf(1);
+    String region = sim.regionNames[sim.storeRegion[0]];
+    scenarioFile = tmp.resolve("test.yaml");
+    Files.writeString(scenarioFile, String.join("\n",
+        "settings:",
+        "  base_weeks: 1",
+        "  draws: 0",
+        "  portfolio: [" + portfolio + "]",
+        "scenarios:",
+        "  - name: none",
+        "    responses: [hold, nash]",
+        "  - name: up3",
+        "    responses: [hold, nash]",
+        "    price_changes:",
+        "      - owners: [portfolio]",
+        "        percent: 3",
+        "  - name: top-cut",
+        "    responses: [nash]",
+        "    price_changes:",
+        "      - owners: [portfolio]",
+        "        top_seller: true",
+        "        regions: [" + region + "]",
+        "        percent: -5",
+        "  - name: launch",
+        "    responses: [hold]",
+        "    launches:",
+        "      - product_id: NEW1",
+        "        owner: " + portfolio,
+        "        like: " + own,
+        "        attributes: {" + sim.attributeNames[0] + ": 1}",
+        "        price: 2.5",
+        "  - name: delist",
+        "    responses: [hold]",
+        "    delist:",
+        "      - products: [" + rival + "]",
+        ""));
+    StringWriter text = new StringWriter();
+    int code = Main.commandLine().setOut(new PrintWriter(text)).setErr(new PrintWriter(text))
+        .execute("scenarios", "--posterior", posterior.toString(), "--scenario",
+            scenarioFile.toString(), "--input", input.toString(), "--output",
+            tmp.resolve("out").toString(), "--run-id", "s1", "--master", "local[2]");
+    assertEquals(0, code, text.toString());
+    runDir = tmp.resolve("out/s1").toString();
+  }
+
+  @AfterAll
+  static void stop() {
+    spark.stop();
+  }
+
+  private static String firstProductOf(int owner) {
+    for (int p = 0; p < sim.products(); p++) {
+      if (sim.productOwner[p] == owner) {
+        return sim.productIds[p];
+      }
+    }
+    throw new IllegalStateException("owner without products");
+  }
+
+  private static Dataset<Row> table(String t) {
+    return spark.read().parquet(runDir + "/" + t);
+  }
+
+  @Test
+  void everyTableHasItsDocumentedColumns() {
+    assertEquals(Arrays.asList(ScenarioTables.PRODUCT_DETAIL_SCHEMA.fieldNames()).subList(1, 24),
+        Arrays.asList(table(ScenarioTables.PRODUCT_DETAIL).columns()).subList(0, 23));
+    assertEquals(List.of("store_id", "region", "chain", "draw", "scope", "owner", "metric",
+        "base_value", "value", "change", "converged", "cost_recovered", "scenario"),
+        Arrays.asList(table(ScenarioTables.STORE_TOTALS).columns()));
+    assertEquals(List.of("store_id", "region", "scope", "owner", "metric", "draws", "base_mean",
+        "value_mean", "mean", "sd", "q05", "q25", "q50", "q75", "q95", "prob_gain", "scenario"),
+        Arrays.asList(table(ScenarioTables.STORE_SUMMARY).columns()));
+    assertEquals(List.of("region", "scope", "owner", "metric", "stores", "draws", "base_mean",
+        "value_mean", "mean", "sd", "q05", "q25", "q50", "q75", "q95", "prob_gain", "scenario"),
+        Arrays.asList(table(ScenarioTables.REGION_SUMMARY).columns()));
+    assertEquals(Arrays.asList(ScenarioTables.ELASTICITY_SCHEMA.fieldNames()),
+        Arrays.asList(table(ScenarioTables.ELASTICITIES).columns()));
+    assertTrue(Files.exists(Path.of(runDir, "run.json")));
+    assertTrue(Files.isDirectory(Path.of(runDir, "validation/rejects")));
+    // 6 stores x 6 draws x 7 scenarios, no failure: every (scenario, store, draw) has rows
+    assertEquals(6L * 6 * 7, table(ScenarioTables.PRODUCT_DETAIL)
+        .select("scenario", "store_id", "chain", "draw").distinct().count());
+  }
+
+  /** hold with no change is the base itself, bit for bit. */
+  @Test
+  void holdWithoutChangeReproducesBaseExactly() {
+    Dataset<Row> d = table(ScenarioTables.PRODUCT_DETAIL).filter("scenario = 'none-hold'");
+    assertTrue(d.count() > 0);
+    assertEquals(0, d.filter("price <> base_price OR share <> base_share OR units <> base_units"
+        + " OR revenue <> base_revenue OR margin <> base_margin OR status <> 'kept'").count());
+    List<Row> summary = table(ScenarioTables.STORE_SUMMARY).filter("scenario = 'none-hold'")
+        .collectAsList();
+    assertFalse(summary.isEmpty());
+    for (Row r : summary) {
+      assertEquals(0.0, r.getDouble(r.fieldIndex("mean")));
+      assertEquals(0.0, r.getDouble(r.fieldIndex("prob_gain")));
+    }
+  }
+
+  /**
+   * The base reproduces the observed latest week at every draw: base_share equals units /
+   * shoppers of the input (half a unit for a zero), since the mean utilities are the inversion of
+   * exactly these shares (Berry 1994).
+   */
+  @Test
+  void baseSharesAreTheObservedShares() {
+    int last = sim.weekDates.length - 1;
+    Map<String, Double> observed = new HashMap<>();
+    for (int i = 0; i < sim.rows; i++) {
+      if (sim.rowWeek[i] == last) {
+        int s = sim.rowStore[i];
+        double u = sim.units[i] > 0 ? sim.units[i] : 0.5;
+        observed.put(sim.storeIds[s] + "/" + sim.productIds[sim.rowProduct[i]],
+            u / sim.shoppers[s]);
+      }
+    }
+    List<Row> rows = table(ScenarioTables.PRODUCT_DETAIL).filter("scenario = 'none-hold'")
+        .select("store_id", "product_id", "base_share").collectAsList();
+    for (Row r : rows) {
+      double want = observed.get(r.getString(0) + "/" + r.getString(1));
+      assertEquals(want, r.getDouble(2), 1e-9 * want, r.toString());
+    }
+  }
+
+  /**
+   * nash with no change: costs come from the first-order conditions at base prices, so the base
+   * prices are the equilibrium and the solver returns them (Bertrand-Nash FOC, DESIGN section 6).
+   */
+  @Test
+  void nashWithoutChangeStaysAtBase() {
+    Dataset<Row> d = table(ScenarioTables.PRODUCT_DETAIL).filter("scenario = 'none-nash'");
+    assertEquals(0, d.filter("NOT converged").count());
+    assertEquals(0, d.filter("abs(price / base_price - 1) > 1e-8").count());
+  }
+
+  @Test
+  void changesLaunchesAndDelistingsLandWhereTheFileSaysAndChecksAreReported() {
+    Dataset<Row> d = table(ScenarioTables.PRODUCT_DETAIL);
+    Dataset<Row> up = d.filter("scenario = 'up3-hold'");
+    assertEquals(0, up.filter("in_portfolio AND abs(price - 1.03 * base_price) > 1e-12").count());
+    assertEquals(0, up.filter("NOT in_portfolio AND price <> base_price").count());
+    assertTrue(up.filter("in_portfolio").count() > 0);
+    Dataset<Row> launch = d.filter("scenario = 'launch-hold' AND status = 'launched'");
+    assertTrue(launch.count() > 0);
+    assertEquals(0, launch.filter("product_id <> 'NEW1' OR base_units <> 0 OR units <= 0"
+        + " OR price <> 2.5 OR NOT in_portfolio").count());
+    Dataset<Row> delisted = d.filter("scenario = 'delist-hold' AND status = 'delisted'");
+    assertTrue(delisted.count() > 0);
+    assertEquals(0, delisted.filter("units <> 0 OR share <> 0 OR base_units <= 0").count());
+    // the top-seller cut touches one product, only in the chosen region
+    List<Row> cut = d.filter("scenario = 'top-cut-nash' AND in_portfolio"
+        + " AND abs(price / base_price - 0.95) < 1e-12").select("product_id", "region")
+        .distinct().collectAsList();
+    assertFalse(cut.isEmpty());
+    for (Row r : cut) {
+      assertEquals(sim.regionNames[sim.storeRegion[0]], r.getString(1));
+      assertEquals(cut.get(0).getString(0), r.getString(0));
+    }
+    List<Row> checks = table(ScenarioTables.STORE_CHECKS).collectAsList();
+    assertEquals(6 * 7, checks.size());
+    for (Row r : checks) {
+      assertEquals(6, r.getInt(r.fieldIndex("draws")));
+      assertEquals(0, r.getInt(r.fieldIndex("inversion_failures")));
+      assertEquals(0, r.getInt(r.fieldIndex("equilibrium_failures")));
+      assertTrue(r.getInt(r.fieldIndex("nonpositive_costs")) >= 0);
+    }
+  }
+
+  /**
+   * Diversion ratios of one price rise sum to one over the other products and the outside
+   * option (a definition, e.g. Conlon and Mortimer 2021, "Empirical properties of diversion
+   * ratios"); own-price elasticities are negative. Checked per draw in core; here on the
+   * posterior means the table carries (a mean of sums that are all one is one).
+   */
+  @Test
+  void elasticityTableIsConsistent() {
+    Dataset<Row> e = table(ScenarioTables.ELASTICITIES);
+    assertEquals(0, e.filter("product_id = wrt_product_id AND elasticity >= 0").count());
+    List<Row> sums = e.groupBy("store_id", "wrt_product_id")
+        .agg(org.apache.spark.sql.functions.expr("sum(coalesce(diversion, 0))"
+            + " + sum(coalesce(diversion_to_outside, 0))")).collectAsList();
+    assertFalse(sums.isEmpty());
+    for (Row r : sums) {
+      assertEquals(1.0, r.getDouble(2), 1e-9, r.toString());
+    }
+  }
+
+  /**
+   * DuckDB (an SQL engine independent of Spark) reads product_detail and recomputes the store
+   * summary of the portfolio margin and the regional units roll-up from the raw rows: the same
+   * numbers as Spark's tables (sums, means, sd, continuous quantiles, probability of a gain).
+   */
+  @Test
+  void duckDbReadsTheSameNumbers() throws Exception {
+    String detail = runDir + "/" + ScenarioTables.PRODUCT_DETAIL + "/**/*.parquet";
+    String per = "WITH per AS (SELECT scenario, store_id, chain, draw,"
+        + " sum(margin) - sum(base_margin) AS change FROM read_parquet('" + detail
+        + "', hive_partitioning = true) WHERE in_portfolio"
+        + " GROUP BY scenario, store_id, chain, draw) ";
+    String sql = per + "SELECT scenario, store_id, count(*), avg(change), stddev_samp(change),"
+        + " quantile_cont(change, 0.05), quantile_cont(change, 0.5), quantile_cont(change, 0.95),"
+        + " avg(CASE WHEN change > 0 THEN 1.0 ELSE 0.0 END)"
+        + " FROM per GROUP BY scenario, store_id ORDER BY scenario, store_id";
+    List<double[]> duck = new ArrayList<>();
+    List<String> keys = new ArrayList<>();
+    try (Connection c = DriverManager.getConnection("jdbc:duckdb:");
+        Statement st = c.createStatement();
+        ResultSet rs = st.executeQuery(sql)) {
+      while (rs.next()) {
+        keys.add(rs.getString(1) + "/" + rs.getString(2));
+        duck.add(new double[] {rs.getLong(3), rs.getDouble(4), rs.getDouble(5), rs.getDouble(6),
+            rs.getDouble(7), rs.getDouble(8), rs.getDouble(9)});
+      }
+    }
+    List<Row> sparkRows = table(ScenarioTables.STORE_SUMMARY)
+        .filter("scope = 'portfolio' AND metric = 'margin'")
+        .selectExpr("scenario", "store_id", "draws", "mean", "sd", "q05", "q50", "q95",
+            "prob_gain").orderBy("scenario", "store_id").collectAsList();
+    assertEquals(keys.size(), sparkRows.size());
+    assertEquals(6 * 7, keys.size());
+    for (int i = 0; i < keys.size(); i++) {
+      Row r = sparkRows.get(i);
+      assertEquals(keys.get(i), r.getString(0) + "/" + r.getString(1));
+      double[] want = duck.get(i);
+      assertEquals(want[0], r.getLong(2));
+      for (int k = 1; k < 7; k++) {
+        double got = ((Number) r.get(2 + k)).doubleValue();
+        double scale = Math.max(1.0, Math.abs(want[k]));
+        assertEquals(want[k], got, 1e-9 * scale, keys.get(i) + " column " + k);
+      }
+    }
+    // regional units roll-up of the portfolio: per draw the sum over the region's stores
+    String region = "WITH per AS (SELECT scenario, region, chain, draw,"
+        + " sum(units) - sum(base_units) AS change FROM read_parquet('" + detail
+        + "', hive_partitioning = true) WHERE in_portfolio GROUP BY scenario, region, chain,"
+        + " draw) SELECT scenario, region, avg(change), quantile_cont(change, 0.25)"
+        + " FROM per GROUP BY scenario, region ORDER BY scenario, region";
+    List<Row> sparkRegion = table(ScenarioTables.REGION_SUMMARY)
+        .filter("scope = 'portfolio' AND metric = 'units'")
+        .selectExpr("scenario", "region", "mean", "q25").orderBy("scenario", "region")
+        .collectAsList();
+    int n = 0;
+    try (Connection c = DriverManager.getConnection("jdbc:duckdb:");
+        Statement st = c.createStatement();
+        ResultSet rs = st.executeQuery(region)) {
+      while (rs.next()) {
+        Row r = sparkRegion.get(n++);
+        assertEquals(rs.getString(1) + "/" + rs.getString(2), r.getString(0) + "/" + r.getString(1));
+        assertEquals(rs.getDouble(3), r.getDouble(2), 1e-9 * Math.max(1, Math.abs(rs.getDouble(3))));
+        assertEquals(rs.getDouble(4), r.getDouble(3), 1e-9 * Math.max(1, Math.abs(rs.getDouble(4))));
+      }
+    }
+    assertEquals(sparkRegion.size(), n);
+  }
+
+  @Test
+  void recommendStaysWithinGuardRailsAndNeverLosesOnAverage() throws Exception {
+    RecommendJob.Options o = new RecommendJob.Options(input.toString(),
+        tmp.resolve("rec").toString(), "r1", posterior.toString(), 1, 0, List.of(portfolio),
+        0.05, Double.NaN, Response.HOLD);
+    RecommendJob.Result res = RecommendJob.run(spark, RunConfig.defaults(), o,
+        new PrintWriter(new StringWriter()));
+    Dataset<Row> rec = spark.read().parquet(res.runDir() + "/" + RecommendJob.RECOMMENDATIONS);
+    assertEquals(Arrays.asList(RecommendJob.SCHEMA.fieldNames()), Arrays.asList(rec.columns()));
+    long own = table(ScenarioTables.PRODUCT_DETAIL).filter("scenario = 'none-hold'"
+        + " AND in_portfolio").select("store_id", "product_id").distinct().count();
+    assertEquals(own, rec.count());
+    assertEquals(0, rec.filter("recommended_price > current_price * 1.05 + 1e-12"
+        + " OR recommended_price < current_price * 0.95 - 1e-12"
+        + " OR recommended_price < mean_cost").count());
+    // the current prices are feasible, so the best found cannot be worse on average
+    assertEquals(0, rec.filter("margin_change_mean < -1e-9").count());
+    assertEquals(0, rec.filter("margin_change_q05 > margin_change_q50"
+        + " OR margin_change_q50 > margin_change_q95 OR prob_gain < 0 OR prob_gain > 1").count());
+    try (Connection c = DriverManager.getConnection("jdbc:duckdb:");
+        Statement st = c.createStatement();
+        ResultSet rs = st.executeQuery("SELECT count(*), sum(recommended_price) FROM read_parquet('"
+            + res.runDir() + "/" + RecommendJob.RECOMMENDATIONS + "/*.parquet')")) {
+      rs.next();
+      assertEquals(rec.count(), rs.getLong(1));
+      assertEquals(rec.agg(org.apache.spark.sql.functions.sum("recommended_price")).first()
+          .getDouble(0), rs.getDouble(2), 1e-9);
+    }
+  }
+
+  @Test
+  void badScenarioFilesAreConfigurationErrors() throws Exception {
+    Path bad = tmp.resolve("bad.yaml");
+    Files.writeString(bad, "settings: {portfolio: [" + portfolio + "]}\nscenarios:\n"
+        + "  - name: x\n    price_changes:\n      - products: [NOPE]\n        percent: 3\n");
+    StringWriter err = new StringWriter();
+    CommandLine cli = Main.commandLine().setOut(new PrintWriter(new StringWriter()))
+        .setErr(new PrintWriter(err));
+    int code = cli.execute("scenarios", "--posterior", posterior.toString(), "--scenario",
+        bad.toString(), "--input", input.toString(), "--output", tmp.resolve("bad").toString(),
+        "--run-id", "b1");
+    assertEquals(2, code, err.toString());
+    assertTrue(err.toString().contains("unknown product 'NOPE'"), err.toString());
+    assertFalse(Files.exists(tmp.resolve("bad/b1")), "a failed run leaves no run folder");
+    Files.writeString(bad, "settings: {portfolio: [x]}\nscenarios:\n  - name: x\n    colour: red\n");
+    err.getBuffer().setLength(0);
+    code = cli.execute("scenarios", "--posterior", posterior.toString(), "--scenario",
+        bad.toString(), "--input", input.toString(), "--output", tmp.resolve("bad").toString(),
+        "--run-id", "b2");
+    assertEquals(2, code, err.toString());
+    assertTrue(err.toString().contains("unknown key 'colour'"), err.toString());
+  }
+}
