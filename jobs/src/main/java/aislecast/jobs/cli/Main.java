@@ -19,6 +19,7 @@ import picocli.CommandLine.Spec;
       ScenariosCommand.class,
       RecommendCommand.class,
       DemoCommand.class,
+      EstimateBenchCommand.class,
       CommandLine.HelpCommand.class
     })
 public final class Main implements Callable<Integer> {

@@ -270,12 +270,16 @@ public final class EstimateJob {
       Manifest.write(staging, spark, o, config, set, problem, rec, summaries, names, failures,
           status, timings, validated);
       run.commit();
-      work.deleteAll();
+      work.deleteWithParent();
 
       Result result = new Result(status, run.target(), names, rec.kept, summaries, failures,
           rec.nextSweep(), rec.sweepSeconds, rec.modelSeconds, rec.aggregateSeconds,
           rec.driverSeconds, problem);
       printOutputs(out, result, sc);
+      StringBuilder phases = new StringBuilder("  timings:");
+      timings.forEach((k, v) -> phases.append(String.format(Locale.ROOT, " %s %.1fs", k, v)));
+      out.println(phases);
+      out.flush();
       return result;
     } finally {
       run.abort();

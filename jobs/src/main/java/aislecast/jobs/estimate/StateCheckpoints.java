@@ -122,10 +122,10 @@ final class StateCheckpoints {
     }
   }
 
-  /** Removes the whole checkpoint folder (after the run is published). */
-  void deleteAll() {
+  /** Removes the checkpoint folder and its parent work folder (after the run is published). */
+  void deleteWithParent() {
     try {
-      fs.delete(dir, true);
+      fs.delete(dir.getParent(), true);
     } catch (IOException e) {
       // a leftover hidden work folder is harmless; the run itself is published
     }

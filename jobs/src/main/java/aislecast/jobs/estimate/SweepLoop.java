@@ -38,7 +38,8 @@ import org.apache.spark.storage.StorageLevel;
  *
  * <p>Every {@code checkpointEvery} sweeps the state goes to {@link StateCheckpoints} and is read
  * back, which cuts the lineage; the broadcasts of the sweeps before it are destroyed then, not
- * earlier, because until the checkpoint a lost cached partition is recomputed through them.
+ * earlier: until the checkpoint every task serialises the whole lineage (cached or not), and a
+ * lost cached partition is recomputed through them.
  */
 final class SweepLoop {
   /**
@@ -58,7 +59,7 @@ final class SweepLoop {
   private final PrintWriter out;
   private final Dims dims;
   private final String[] names;
-  private final List<Broadcast<SweepInput>> liveBroadcasts = new ArrayList<>();
+  private final List<Broadcast<?>> liveBroadcasts = new ArrayList<>();
   private JavaRDD<SweptStore> state;
   private ChainRecord record;
   private long runStartNanos;
@@ -105,9 +106,10 @@ final class SweepLoop {
         })
         .setName("stores@init");
     init.persist(LEVEL).count();
-    bp.destroy();
-    bw.destroy();
-    // lineage starts at the driver's list: small, so no checkpoint needed here
+    // tasks of later sweeps serialise this RDD's lineage too, so these broadcasts must live
+    // until the first checkpoint cuts it
+    liveBroadcasts.add(bp);
+    liveBroadcasts.add(bw);
     state = init;
   }
 
@@ -189,7 +191,7 @@ final class SweepLoop {
 
   /** Destroys every broadcast still alive (call when the loop's RDDs are no longer needed). */
   void releaseBroadcasts() {
-    for (Broadcast<SweepInput> b : liveBroadcasts) {
+    for (Broadcast<?> b : liveBroadcasts) {
       b.destroy();
     }
     liveBroadcasts.clear();

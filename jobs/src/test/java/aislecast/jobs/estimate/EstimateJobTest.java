@@ -1,0 +1,270 @@
+package aislecast.jobs.estimate;
+
+import static org.junit.jupiter.api.Assertions.assertArrayEquals;
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertFalse;
+import static org.junit.jupiter.api.Assertions.assertNotEquals;
+import static org.junit.jupiter.api.Assertions.assertNotNull;
+import static org.junit.jupiter.api.Assertions.assertNull;
+import static org.junit.jupiter.api.Assertions.assertThrows;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import aislecast.core.estimate.InProcessRunner;
+import aislecast.core.estimate.SamplerSettings;
+import aislecast.core.sim.DemandSimulator;
+import aislecast.core.sim.SimSettings;
+import aislecast.core.sim.SimWriter;
+import aislecast.jobs.cli.Main;
+import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.config.RunFailure;
+import aislecast.jobs.config.SamplerConfig;
+import aislecast.jobs.spark.SparkSessions;
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
+import java.io.PrintWriter;
+import java.io.StringWriter;
+import java.nio.file.Files;
+import java.nio.file.Path;
+import java.util.Arrays;
+import java.util.List;
+import java.util.stream.Stream;
+import org.apache.spark.sql.Dataset;
+import org.apache.spark.sql.Row;
+import org.apache.spark.sql.SparkSession;
+import org.junit.jupiter.api.AfterEach;
+import org.junit.jupiter.api.BeforeAll;
+import org.junit.jupiter.api.Test;
+import org.junit.jupiter.api.io.TempDir;
+
+/**
+ * End-to-end runs of the Spark estimation job on small data simulated from the model (4 stores,
+ * 6 weeks, 5 products, 2 attributes, 30 shopper draws), with few sweeps. The reference for the
+ * draws is {@link InProcessRunner}: the same sweep functions composed in one JVM without Spark
+ * (common practice for distributed iterative algorithms: the distributed loop must reproduce a
+ * serial one exactly when every random stream is keyed by (seed, chain, store, sweep)).
+ */
+class EstimateJobTest {
+  private static final long SEED = 77L;
+  private static final int STORES = 4;
+
+  @TempDir static Path data;
+  @TempDir Path out;
+
+  @BeforeAll
+  static void simulate() throws Exception {
+    // tiny tables: one shuffle partition keeps validation's SQL stages cheap
+    System.setProperty("spark.sql.shuffle.partitions", "1");
+    SimSettings s = SimSettings.demo().withSizes(STORES, 6, 5, 2, 2, 30);
+    SimWriter.write(DemandSimulator.simulate(s), data.resolve("in"), false);
+  }
+
+  @AfterEach
+  void stopSpark() {
+    SparkSession.getActiveSession().foreach(s -> {
+      s.stop();
+      return null;
+    });
+    SparkSession.clearActiveSession();
+    SparkSession.clearDefaultSession();
+  }
+
+  /** Few sweeps, checkpoints every 4, 2 partitions, one summation group for all stores. */
+  private static SamplerConfig small(int partitions, int sumGroup) {
+    return new SamplerConfig(3, 8, 8, 1, 8, 0.8, 200, 4, 1.01, 400, 5, partitions, sumGroup,
+        true, false);
+  }
+
+  private static SparkSession spark(String master) {
+    return SparkSessions.open(master, "estimate-test").spark();
+  }
+
+  private EstimateJob.Result run(SparkSession spark, SamplerConfig sc, EstimateJob.Options o) {
+    StringWriter text = new StringWriter();
+    EstimateJob.Result r = EstimateJob.run(spark, RunConfig.defaults().withSampler(sc), o,
+        new PrintWriter(text, true));
+    System.out.print(text);
+    return r;
+  }
+
+  private EstimateJob.Options options(String runId) {
+    return EstimateJob.Options.of(data.resolve("in").toString(), out.toString(), runId, SEED);
+  }
+
+  /** The serial reference on exactly the stores the job assembled. */
+  private static double[][][] reference(EstimateJob.Result r, SamplerConfig sc) {
+    EstimationProblem p = r.problem();
+    SamplerSettings set = EstimateJob.samplerSettings(sc, SEED);
+    InProcessRunner.Result ref = InProcessRunner.run(p.stores(), p.catalog(), p.kd(), p.kz(),
+        p.kc(), RunConfig.defaults().priors().toPriors(p.kd(), p.kx()), set);
+    return ref.globalDraws();
+  }
+
+  private static void assertSameDraws(double[][][] expected, double[][][] actual) {
+    assertEquals(expected.length, actual.length, "chains");
+    for (int c = 0; c < expected.length; c++) {
+      assertEquals(expected[c].length, actual[c].length, "draws of chain " + c);
+      for (int d = 0; d < expected[c].length; d++) {
+        // exact: assertArrayEquals on doubles compares bit patterns via Double.equals
+        assertArrayEquals(expected[c][d], actual[c][d], "chain " + c + " draw " + d);
+      }
+    }
+  }
+
+  @Test
+  void sparkDrawsEqualTheInProcessRunnerBitForBit() {
+    SamplerConfig sc = small(2, 64);
+    EstimateJob.Result r = run(spark("local[2]"), sc, options("a"));
+    assertEquals(STORES, r.problem().stores().size());
+    double[][][] ref = reference(r, sc);
+    assertSameDraws(ref, r.globalDraws());
+    // the draws are not trivially constant: the chains moved
+    assertFalse(Arrays.equals(ref[0][0], ref[0][7]), "chain 0 did not move");
+
+    // and the Parquet table holds exactly those numbers
+    SparkSession spark = SparkSession.active();
+    List<Row> rows = spark.read().parquet(r.runDir() + "/" + PosteriorWriter.GLOBAL_DRAWS)
+        .collectAsList();
+    assertEquals(3 * 8 * r.parameterNames().length, rows.size());
+    List<String> names = Arrays.asList(r.parameterNames());
+    for (Row row : rows) {
+      int c = row.getInt(0);
+      int d = row.getInt(1);
+      int p = names.indexOf(row.getString(2));
+      assertEquals(ref[c][d][p], row.getDouble(3), 0.0);
+    }
+  }
+
+  @Test
+  void oneCoreAndTwoCoresAndOtherPartitioningsGiveIdenticalDraws() {
+    // several summation groups (2 stores each) and partitions cutting through them
+    SamplerConfig threeParts = small(3, 2);
+    SamplerConfig oneStoreEach = small(4, 2);
+    EstimateJob.Result one = run(spark("local[1]"), threeParts, options("b1"));
+    stopSpark();
+    EstimateJob.Result two = run(spark("local[2]"), oneStoreEach, options("b2"));
+    assertSameDraws(one.globalDraws(), two.globalDraws());
+    // and with one group for all stores, local[1] reproduces the serial reference too
+    stopSpark();
+    SamplerConfig oneGroup = small(3, 64);
+    EstimateJob.Result serialOrder = run(spark("local[1]"), oneGroup, options("b3"));
+    assertSameDraws(reference(serialOrder, oneGroup), serialOrder.globalDraws());
+  }
+
+  @Test
+  void aTaskFailureAndRetryGiveIdenticalDraws() {
+    SamplerConfig sc = small(2, 64);
+    // local[2,4]: 2 threads, a task may fail up to 4 times
+    EstimateJob.Result r = run(spark("local[2,4]"), sc, options("c").withFailAtSweep(5));
+    assertSameDraws(reference(r, sc), r.globalDraws());
+  }
+
+  @Test
+  void aStoppedAndResumedRunEqualsAnUninterruptedOne() throws Exception {
+    SamplerConfig sc = small(2, 64);
+    SparkSession spark = spark("local[2]");
+    // stop after 7 sweeps: between checkpoints (every 4), during warmup (8 sweeps)
+    EstimateJob.Result stopped = run(spark, sc, options("d").withStopAtSweep(7));
+    assertEquals(EstimateJob.Status.STOPPED, stopped.status());
+    assertNull(stopped.runDir());
+    assertFalse(Files.exists(out.resolve("d")), "a stopped run must not be visible");
+    assertTrue(Files.isDirectory(out.resolve(".work-d")));
+    // without --resume the stopped run is protected
+    RunFailure again = assertThrows(RunFailure.class, () -> run(spark, sc, options("d")));
+    assertEquals(2, again.exitCode());
+    assertTrue(again.getMessage().contains("--resume"), again.getMessage());
+    // a resume with another seed is refused
+    RunFailure otherSeed = assertThrows(RunFailure.class, () -> run(spark, sc,
+        EstimateJob.Options.of(data.resolve("in").toString(), out.toString(), "d", SEED + 1)
+            .withResume(true)));
+    assertTrue(otherSeed.getMessage().contains("cannot resume"), otherSeed.getMessage());
+
+    EstimateJob.Result resumed = run(spark, sc, options("d").withResume(true));
+    assertNotEquals(EstimateJob.Status.STOPPED, resumed.status());
+    assertEquals(16, resumed.sweepsDone());
+    assertSameDraws(reference(resumed, sc), resumed.globalDraws());
+    assertFalse(Files.exists(out.resolve(".work-d")), "work folder removed after publishing");
+  }
+
+  @Test
+  void outputsHaveTheDocumentedColumnsAndOneSummaryRowPerGlobalParameter() throws Exception {
+    SamplerConfig sc = small(2, 64);
+    SparkSession spark = spark("local[2]");
+    EstimateJob.Result r = run(spark, sc, options("e"));
+    Path dir = out.resolve("e");
+    assertEquals(dir.toAbsolutePath().toString(), r.runDir());
+
+    Dataset<Row> g = spark.read().parquet(dir.resolve("posterior/global_draws").toString());
+    assertArrayEquals(new String[] {"chain", "draw", "parameter", "value"}, g.columns());
+    Dataset<Row> s = spark.read().parquet(dir.resolve("posterior/store_draws").toString());
+    assertArrayEquals(new String[] {"store_id", "chain", "draw", "parameter", "value"},
+        s.columns());
+    int kpsi = r.problem().dims().kpsi();
+    assertEquals((long) STORES * 3 * 8 * kpsi, s.count());
+    assertEquals(List.of("L21", "a", "log_L11", "log_L22", "log_sigma"),
+        s.select("parameter").distinct().orderBy("parameter").collectAsList().stream()
+            .map(x -> x.getString(0)).toList());
+    Dataset<Row> sum = spark.read().parquet(dir.resolve("posterior/summary").toString());
+    assertArrayEquals(new String[] {"parameter", "mean", "sd", "q05", "q50", "q95", "rhat",
+        "ess_bulk", "ess_tail", "mcse_mean"}, sum.columns());
+    assertEquals(r.parameterNames().length, sum.count());
+    assertEquals(r.parameterNames().length, sum.select("parameter").distinct().count());
+    assertTrue(Files.isDirectory(dir.resolve("validation/rejects")));
+    assertTrue(Files.isDirectory(dir.resolve(EstimateJob.CHECKPOINT_DIR)));
+
+    JsonNode run = new ObjectMapper().readTree(dir.resolve("run.json").toFile());
+    assertEquals(r.status().label, run.get("status").asText());
+    assertEquals(SEED, run.get("seed").asLong());
+    assertEquals(16, run.get("sampler").get("sweeps_done").asInt());
+    assertNotNull(run.get("timings").get("sweeps_seconds"));
+    assertEquals(3, run.get("configuration").get("sampler").get("chains").asInt());
+    try (Stream<Path> left = Files.list(out)) {
+      assertEquals(List.of("e"), left.map(p -> p.getFileName().toString()).toList(),
+          "no staging or work folders are left behind");
+    }
+
+    // a warm start from this run starts its chains from the run's final state
+    EstimateJob.Result warm = run(spark, sc, options("e2").withWarmStart(r.runDir()));
+    assertNotEquals(EstimateJob.Status.STOPPED, warm.status());
+    assertFalse(Arrays.deepEquals(r.globalDraws(), warm.globalDraws()));
+  }
+
+  @Test
+  void exitCodeThreeWhenLimitsAreNotMetAndZeroWhenAllowed() throws Exception {
+    Path conf = out.resolve("strict.yaml");
+    Files.writeString(conf, String.join("\n",
+        "sampler:",
+        "  chains: 2",
+        "  warmup: 4",
+        "  sampling: 6",
+        "  local_steps: 1",
+        "  leapfrog_steps: 4",
+        "  partitions: 2",
+        "  rhat_max: 1.01",
+        "  ess_min: 100000",
+        ""));
+    spark("local[2]");
+    String[] base = {"estimate", "--input", data.resolve("in").toString(), "--output",
+        out.toString(), "--conf", conf.toString(), "--seed", "5"};
+    StringWriter err = new StringWriter();
+    int code = Main.commandLine().setErr(new PrintWriter(err, true))
+        .setOut(new PrintWriter(new StringWriter(), true))
+        .execute(concat(base, "--run-id", "f1"));
+    assertEquals(3, code, err.toString());
+    assertTrue(err.toString().contains("convergence limits not met"), err.toString());
+    JsonNode strict = new ObjectMapper().readTree(out.resolve("f1/run.json").toFile());
+    assertEquals("not_converged", strict.get("status").asText());
+    assertTrue(strict.get("convergence").get("failures").size() > 0);
+
+    int allowed = Main.commandLine().setOut(new PrintWriter(new StringWriter(), true))
+        .execute(concat(base, "--run-id", "f2", "--allow-unconverged"));
+    assertEquals(0, allowed);
+    JsonNode loose = new ObjectMapper().readTree(out.resolve("f2/run.json").toFile());
+    assertEquals("not_converged_allowed", loose.get("status").asText());
+  }
+
+  private static String[] concat(String[] a, String... b) {
+    String[] r = Arrays.copyOf(a, a.length + b.length);
+    System.arraycopy(b, 0, r, a.length, b.length);
+    return r;
+  }
+}
