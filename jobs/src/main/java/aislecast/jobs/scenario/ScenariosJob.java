@@ -71,8 +71,13 @@ public final class ScenariosJob {
       }
       ScenarioResolver.Result resolved = ScenarioResolver.resolve(o.scenarios(), prep.catalog(),
           prep.stores());
-      List<String> notes = new ArrayList<>(prep.notes());
-      notes.addAll(resolved.notes());
+      // a selection note repeats once per response of its scenario: keep each once
+      List<String> notes = new ArrayList<>(new java.util.LinkedHashSet<>(prep.notes()));
+      for (String n : new java.util.LinkedHashSet<>(resolved.notes())) {
+        if (!notes.contains(n)) {
+          notes.add(n);
+        }
+      }
       PosteriorRun.Selection sel = posterior.select(spark, o.scenarios().draws());
       seconds.put("prepare", secondsSince(t0));
       out.printf(Locale.ROOT, "scenarios: %d stores x %d draws (of %d) x %d scenarios%n",
