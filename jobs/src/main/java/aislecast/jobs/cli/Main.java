@@ -18,6 +18,7 @@ import picocli.CommandLine.Spec;
       GenerateCommand.class,
       ScenariosCommand.class,
       RecommendCommand.class,
+      ReportCommand.class,
       DemoCommand.class,
       EstimateBenchCommand.class,
       CommandLine.HelpCommand.class
