@@ -53,6 +53,13 @@ public final class RecommendCommand extends JobCommand {
           + " latest week).")
   int baseWeeks;
 
+  @Option(names = "--own-cost-column", paramLabel = "COLUMN",
+      description = "Sales cost-shifter column holding the portfolio's own unit costs (e.g."
+          + " unit_cost); its mean over the base weeks replaces the first-order-condition cost of"
+          + " the portfolio's products. Default: every cost from the first-order conditions, so"
+          + " current prices are (near) optimal by construction.")
+  String ownCostColumn;
+
   @Option(names = "--draws", paramLabel = "N", defaultValue = "100",
       description = "Posterior draws to use, evenly spaced; 0 = all (default: ${DEFAULT-VALUE}).")
   int draws;
@@ -77,7 +84,8 @@ public final class RecommendCommand extends JobCommand {
     }
     RunConfig config = RunConfigLoader.load(common.conf());
     RecommendJob.Options o = new RecommendJob.Options(common.input(), common.output(),
-        common.runId(), posterior, baseWeeks, draws, portfolio, maxMove, quantile, r);
+        common.runId(), posterior, baseWeeks, draws, portfolio, maxMove, quantile, r,
+        ownCostColumn);
     try (SparkSessions.Handle spark = SparkSessions.open(common.master(), "aislecast recommend")) {
       RecommendJob.run(spark.spark(), config, o, out());
     }

@@ -47,7 +47,7 @@ public final class RecommendJob {
    */
   public record Options(String input, String outputRoot, String runId, String posterior,
       int baseWeeks, int draws, List<String> portfolio, double maxMove, double quantile,
-      Response response) {}
+      Response response, String ownCostColumn) {}
 
   private static StructField f(String name, DataType type, boolean nullable) {
     return DataTypes.createStructField(name, type, nullable);
@@ -95,7 +95,7 @@ public final class RecommendJob {
         validated.requireRejectShareAtMost(config.validation().maxRejectShare(),
             "the rejects table (run 'aislecast validate' on this input to publish it)");
         prep = ScenarioInputs.prepare(spark, config, validated, posterior, o.baseWeeks(),
-            o.portfolio());
+            o.portfolio(), o.ownCostColumn());
       }
       for (String owner : o.portfolio()) {
         boolean found = false;
@@ -135,6 +135,7 @@ public final class RecommendJob {
       m.put("base_weeks", o.baseWeeks());
       m.put("max_move", o.maxMove());
       m.put("objective", objective);
+      m.put("own_cost_column", o.ownCostColumn());
       m.put("response", o.response().name().toLowerCase(Locale.ROOT));
       m.put("stores", prep.stores().size());
       m.put("draws", sel.size());

@@ -31,7 +31,10 @@ import scala.Tuple2;
  *   <li>assortment: the products stocked in the store's latest week;
  *   <li>with {@code baseWeeks = n}: each product's price and units are their means over the
  *       weeks among the last n in which it was stocked; the market size is the mean over the last
- *       n weeks (n = 1: the latest week as observed).
+ *       n weeks (n = 1: the latest week as observed);
+ *   <li>known marginal costs (optional): for the portfolio's products, the mean over the same
+ *       weeks of a cost-shifter column (e.g. the user's own {@code unit_cost}); every other cost
+ *       comes from the first-order conditions.
  * </ul>
  *
  * Stores without posterior draws are left out with a note.
@@ -43,7 +46,7 @@ final class ScenarioInputs {
   record Prepared(ProductCatalog catalog, List<StoreWork> stores, List<String> notes) {}
 
   static Prepared prepare(SparkSession spark, RunConfig config, ValidatedInput validated,
-      PosteriorRun posterior, int baseWeeks, List<String> portfolio) {
+      PosteriorRun posterior, int baseWeeks, List<String> portfolio, String ownCostColumn) {
     JavaSparkContext jsc = JavaSparkContext.fromSparkContext(spark.sparkContext());
     List<String> notes = new ArrayList<>();
     int generated = posterior.generatedShopperDraws() != null
@@ -60,6 +63,15 @@ final class ScenarioInputs {
     }
     Set<String> withDraws = new HashSet<>(posterior.stores(spark));
     ProductCatalog catalog = problem.catalog();
+    int costIndex = -1;
+    if (ownCostColumn != null) {
+      costIndex = problem.costShifters().indexOf(ownCostColumn);
+      if (costIndex < 0) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "own cost column '" + ownCostColumn
+            + "' is not a cost shifter of the sales table (cost shifters: "
+            + problem.costShifters() + ")");
+      }
+    }
     List<StoreWork> stores = new ArrayList<>();
     List<String> missing = new ArrayList<>();
     for (StoreData d : problem.stores()) {
@@ -67,7 +79,7 @@ final class ScenarioInputs {
         missing.add(d.storeId);
         continue;
       }
-      stores.add(basePeriod(d, catalog, region.get(d.storeId), baseWeeks, portfolio));
+      stores.add(basePeriod(d, catalog, region.get(d.storeId), baseWeeks, portfolio, costIndex));
     }
     if (!missing.isEmpty()) {
       notes.add(missing.size() + " store(s) have no posterior draws and are left out, e.g. "
@@ -82,7 +94,7 @@ final class ScenarioInputs {
 
   /** One store's base period (see the class comment). */
   static StoreWork basePeriod(StoreData d, ProductCatalog catalog, String region, int baseWeeks,
-      List<String> portfolio) {
+      List<String> portfolio, int costIndex) {
     int t = d.markets();
     int first = Math.max(0, t - baseWeeks);
     int lastStart = d.rowStart[t - 1];
@@ -102,6 +114,7 @@ final class ScenarioInputs {
     }
     double[] price = new double[j];
     double[] units = new double[j];
+    double[] cost = new double[j];
     int[] weeks = new int[j];
     double size = 0;
     for (int w = first; w < t; w++) {
@@ -111,6 +124,9 @@ final class ScenarioInputs {
         if (q != null) {
           price[q] += d.price[row];
           units[q] += d.units[row];
+          if (costIndex >= 0) {
+            cost[q] += Math.exp(d.c[row * d.kc + costIndex]); // cost shifters are stored as logs
+          }
           weeks[q]++;
         }
       }
@@ -119,11 +135,12 @@ final class ScenarioInputs {
     for (int q = 0; q < j; q++) {
       price[q] /= weeks[q];
       units[q] /= weeks[q];
+      cost[q] = costIndex >= 0 && portfolio.contains(owners[q]) ? cost[q] / weeks[q] : Double.NaN;
     }
     BaseUtilities.observedShares(units, size); // fails early on a market with no outside option
     return new StoreWork(d.storeId, region, ids, owners, kx, x, price, units, size, d.nu,
         d.shoppers, List.copyOf(portfolio), new int[0], new int[0], new double[0][],
-        List.of());
+        List.of(), costIndex >= 0 ? cost : null);
   }
 
   /** The stores as an RDD keyed by store, each with its selected psi draws attached. */

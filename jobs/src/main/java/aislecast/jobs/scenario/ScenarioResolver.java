@@ -87,7 +87,7 @@ final class ScenarioResolver {
     for (StoreWork s : stores) {
       StoreWork w = new StoreWork(s.storeId(), s.region(), s.productIds(), s.owners(), s.kx(),
           s.x(), s.price(), s.units(), s.marketSize(), s.nu(), s.shoppers(), s.portfolio(),
-          s.chain(), s.draw(), s.psi(), List.copyOf(perStore.get(s.storeId())));
+          s.chain(), s.draw(), s.psi(), List.copyOf(perStore.get(s.storeId())), s.knownCost());
       BaseMarket market = w.market();
       for (StoreScenario sc : w.scenarios()) {
         try {

@@ -67,7 +67,7 @@ public final class ScenariosJob {
         validated.requireRejectShareAtMost(config.validation().maxRejectShare(),
             "the rejects table (run 'aislecast validate' on this input to publish it)");
         prep = ScenarioInputs.prepare(spark, config, validated, posterior,
-            o.scenarios().baseWeeks(), o.scenarios().portfolio());
+            o.scenarios().baseWeeks(), o.scenarios().portfolio(), null);
       }
       ScenarioResolver.Result resolved = ScenarioResolver.resolve(o.scenarios(), prep.catalog(),
           prep.stores());

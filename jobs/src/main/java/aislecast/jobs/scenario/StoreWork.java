@@ -25,11 +25,13 @@ import java.util.Set;
  * @param draw posterior draw (within its chain) of each selected draw
  * @param psi psi per selected draw, D x Kpsi
  * @param scenarios resolved scenarios, the same names in the same order for every store
+ * @param knownCost per product a known marginal cost (the user's own unit cost) or NaN to take it
+ *     from the first-order conditions; null for all NaN
  */
 public record StoreWork(String storeId, String region, String[] productIds, String[] owners,
     int kx, double[] x, double[] price, double[] units, double marketSize, double[] nu,
     int shoppers, List<String> portfolio, int[] chain, int[] draw, double[][] psi,
-    List<StoreScenario> scenarios) implements Serializable {
+    List<StoreScenario> scenarios, double[] knownCost) implements Serializable {
 
   public int products() {
     return productIds.length;
@@ -39,10 +41,10 @@ public record StoreWork(String storeId, String region, String[] productIds, Stri
     return chain.length;
   }
 
-  /** The core view of the base period (every marginal cost from first-order conditions). */
+  /** The core view of the base period (costs not known come from first-order conditions). */
   public BaseMarket market() {
     return new BaseMarket(storeId, productIds, owners, kx, x, price, marketSize, nu, shoppers,
-        null, Set.copyOf(portfolio));
+        knownCost, Set.copyOf(portfolio));
   }
 
   /** Largest assortment of any scenario here (launches add products). */
@@ -57,6 +59,6 @@ public record StoreWork(String storeId, String region, String[] productIds, Stri
   /** Copy with other psi draws (used to attach the posterior on the executors). */
   public StoreWork withDraws(int[] chains, int[] draws, double[][] psiDraws) {
     return new StoreWork(storeId, region, productIds, owners, kx, x, price, units, marketSize,
-        nu, shoppers, portfolio, chains, draws, psiDraws, scenarios);
+        nu, shoppers, portfolio, chains, draws, psiDraws, scenarios, knownCost);
   }
 }
