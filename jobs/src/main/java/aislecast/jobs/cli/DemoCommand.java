@@ -3,9 +3,11 @@ package aislecast.jobs.cli;
 import aislecast.jobs.config.RunConfig;
 import aislecast.jobs.config.RunConfigLoader;
 import aislecast.jobs.config.RunFailure;
+import aislecast.jobs.report.ReportJob;
 import aislecast.jobs.spark.SparkSessions;
 import java.nio.file.Files;
 import java.nio.file.Path;
+import java.util.List;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 
@@ -19,7 +21,8 @@ import picocli.CommandLine.Command;
     description = {
       "Run on the bundled sample (" + DemoCommand.SAMPLE_DIR + ", generated first if missing)"
           + " with the embedded local[*] Spark and print where every output is.",
-      "Steps available in this build: generate (if needed), validate.",
+      "Steps available in this build: generate (if needed), validate, report (when the run has"
+          + " posterior or scenario tables).",
       "--input replaces the sample; --conf defaults to " + DemoCommand.DEMO_CONF
           + " when that file exists."
     },
@@ -46,13 +49,32 @@ public final class DemoCommand extends JobCommand {
     RunConfig config = RunConfigLoader.load(conf);
     out().println("demo: input " + input + ", configuration "
         + (conf == null ? "built-in defaults" : conf.toString()) + ", run " + common.runId());
+    String runDir = Path.of(common.output(), common.runId()).toAbsolutePath().normalize()
+        .toString();
     try (SparkSessions.Handle spark = SparkSessions.open(common.master(), "aislecast demo")) {
       ValidateCommand.validateAndPublish(spark.spark(), config, input, common.output(),
           common.runId(), out()).close();
+      writeReport(spark, runDir);
     }
-    out().println("demo: done; the run folder is " + Path.of(common.output(), common.runId())
-        .toAbsolutePath().normalize());
+    out().println("demo: done; the run folder is " + runDir);
     return ExitCodeMapper.OK;
+  }
+
+  /**
+   * The last step: the HTML report of the run, when the run holds tables to report on. Until
+   * estimate and scenarios are chained into demo, the run has only validation outputs and the
+   * step says so instead of writing a page of notes.
+   */
+  private void writeReport(SparkSessions.Handle spark, String runDir) {
+    if (!ReportJob.hasTables(spark.spark(), runDir)) {
+      out().println("demo: report skipped (the run has no posterior or scenario tables yet);"
+          + " after 'aislecast estimate' or 'aislecast scenarios' run 'aislecast report --run"
+          + " RUNDIR'");
+      return;
+    }
+    ReportJob.Result r = ReportJob.run(spark.spark(),
+        new ReportJob.Options(runDir, List.of(), null, null), out());
+    out().println("demo: report " + r.path());
   }
 
   /** Writes the sample through the generate command, so demo and generate cannot disagree. */

@@ -11,6 +11,8 @@ import java.util.List;
 import java.util.Locale;
 import org.jfree.chart.ChartUtils;
 import org.jfree.chart.JFreeChart;
+import org.jfree.chart.LegendItem;
+import org.jfree.chart.LegendItemCollection;
 import org.jfree.chart.annotations.XYTextAnnotation;
 import org.jfree.chart.axis.AxisLocation;
 import org.jfree.chart.axis.NumberAxis;
@@ -51,7 +53,6 @@ final class Charts {
   };
   private static final Font TITLE = new Font(Font.SANS_SERIF, Font.BOLD, 14);
   private static final Font SMALL = new Font(Font.SANS_SERIF, Font.PLAIN, 10);
-  private static final int HISTOGRAM_BINS = 40;
 
   static {
     // charts are drawn off screen; a server without a display must not try to open one
@@ -102,9 +103,11 @@ final class Charts {
       lo -= pad;
       hi += pad;
     }
+    // Rice rule (2 n^(1/3) bins, common practice), kept within 10..50
+    int bins = (int) Math.max(10, Math.min(50, Math.ceil(2 * Math.cbrt(pooled.length))));
     HistogramDataset all = new HistogramDataset();
     all.setType(HistogramType.SCALE_AREA_TO_1);
-    all.addSeries("all chains", pooled, HISTOGRAM_BINS, lo, hi);
+    all.addSeries("all chains", pooled, bins, lo, hi);
     XYBarRenderer bars = new XYBarRenderer(0.0);
     bars.setBarPainter(new StandardXYBarPainter());
     bars.setShadowVisible(false);
@@ -112,18 +115,18 @@ final class Charts {
     bars.setDrawBarOutline(false);
 
     XYSeriesCollection perChain = new XYSeriesCollection();
-    double width = (hi - lo) / HISTOGRAM_BINS;
+    double width = (hi - lo) / bins;
     for (int c = 0; c < draws.length; c++) {
-      double[] counts = new double[HISTOGRAM_BINS];
+      double[] counts = new double[bins];
       int n = 0;
       for (double v : draws[c]) {
         if (Double.isFinite(v)) {
-          counts[Math.min(HISTOGRAM_BINS - 1, (int) ((v - lo) / width))]++;
+          counts[Math.min(bins - 1, (int) ((v - lo) / width))]++;
           n++;
         }
       }
       XYSeries s = new XYSeries("chain " + c);
-      for (int b = 0; b < HISTOGRAM_BINS && n > 0; b++) {
+      for (int b = 0; b < bins && n > 0; b++) {
         s.add(lo + (b + 0.5) * width, counts[b] / (n * width));
       }
       perChain.addSeries(s);
@@ -162,6 +165,7 @@ final class Charts {
       lines.setSeriesStroke(c, new BasicStroke(0.8f));
     }
     NumberAxis x = new NumberAxis("kept draw");
+    x.setStandardTickUnits(NumberAxis.createIntegerTickUnits());
     NumberAxis y = new NumberAxis(axisLabel);
     y.setAutoRangeIncludesZero(false);
     return png(chart(title, new XYPlot(ds, x, y, lines), true), 520, 300);
@@ -204,12 +208,22 @@ final class Charts {
     stores.setRange(-0.8, n - 0.2);
     NumberAxis change = new NumberAxis(axisLabel);
     change.setAutoRangeIncludesZero(true);
+    change.setUpperMargin(0.18); // room for the region names at the right
     XYPlot plot = new XYPlot(new XYSeriesCollection(median), stores, change, dots);
     plot.setDataset(1, collection(inner));
     plot.setRenderer(1, thick);
     plot.setDataset(2, collection(outer));
     plot.setRenderer(2, thin);
     plot.setOrientation(PlotOrientation.HORIZONTAL);
+    // interval series draw no lines between stores, so their legend needs drawn-in samples
+    LegendItemCollection legend = new LegendItemCollection();
+    legend.add(new LegendItem("5% to 95%", null, null, null,
+        new java.awt.geom.Rectangle2D.Double(-9, -0.6, 18, 1.2), new Color(0x4A6FA5)));
+    legend.add(new LegendItem("25% to 75%", null, null, null,
+        new java.awt.geom.Rectangle2D.Double(-9, -3, 18, 6), new Color(0x1F3F73)));
+    legend.add(new LegendItem("median", null, null, null,
+        new java.awt.geom.Ellipse2D.Double(-4, -4, 8, 8), new Color(0xD55E00)));
+    plot.setFixedLegendItems(legend);
     plot.setRangeAxisLocation(AxisLocation.BOTTOM_OR_LEFT);
     plot.addRangeMarker(new ValueMarker(0.0, Color.DARK_GRAY, new BasicStroke(1f)));
     int start = 0;
@@ -224,6 +238,7 @@ final class Charts {
         m.setLabelAnchor(RectangleAnchor.TOP_RIGHT);
         m.setLabelTextAnchor(TextAnchor.TOP_RIGHT);
         m.setLabelOffset(new RectangleInsets(2, 2, 2, 6));
+        m.setLabelBackgroundColor(new Color(0, 0, 0, 0));
         plot.addDomainMarker(m, Layer.BACKGROUND);
         start = i;
       }
@@ -248,10 +263,6 @@ final class Charts {
     r.setSeriesPaint(0, colour);
     r.setDefaultShapesVisible(false);
     r.setDefaultLinesVisible(false);
-    // the legend shows a short line in the interval's colour and width
-    r.setSeriesStroke(0, new BasicStroke(stroke));
-    r.setLegendLine(new java.awt.geom.Line2D.Double(-8, 0, 8, 0));
-    r.setSeriesLinesVisible(0, false);
     return r;
   }
 
@@ -320,7 +331,7 @@ final class Charts {
       }
     }
     JFreeChart chart = chart(title, plot, false);
-    NumberAxis legendAxis = new NumberAxis("elasticity (colour scale clipped at +-"
+    NumberAxis legendAxis = new NumberAxis("elasticity (colours stop at \u00b1"
         + String.format(Locale.ROOT, "%.3g", span) + ")");
     legendAxis.setRange(-span, span);
     legendAxis.setTickLabelFont(SMALL);

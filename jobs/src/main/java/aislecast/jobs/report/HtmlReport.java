@@ -50,6 +50,7 @@ final class HtmlReport {
       ".notes{border-left:5px solid #6a7786;background:#eef1f5;padding:8px 16px;margin:12px 0}",
       "table{border-collapse:collapse;margin:6px 0 12px;font-size:12.5px}",
       "th,td{border:1px solid #d8dde5;padding:3px 7px;text-align:right;vertical-align:top}",
+      "td{white-space:nowrap}.facts td{white-space:normal;overflow-wrap:anywhere}",
       "th{background:#eef1f5;position:sticky;top:0}td.t,th.t{text-align:left}",
       "tr.flag td{background:#fde8e8}td.flag{color:#a01010;font-weight:bold}",
       ".scroll{max-height:520px;overflow:auto;border:1px solid #d8dde5;display:inline-block;",
@@ -137,7 +138,8 @@ final class HtmlReport {
       }
       List<String[]> rows = new ArrayList<>();
       flatten("", m, rows);
-      h.append("<table><tr><th class=\"t\">item</th><th class=\"t\">value</th></tr>\n");
+      h.append("<table class=\"facts\"><tr><th class=\"t\">item</th><th class=\"t\">value")
+          .append("</th></tr>\n");
       for (String[] r : rows) {
         h.append("<tr><td class=\"t\">").append(esc(r[0])).append("</td><td class=\"t\">")
             .append(esc(r[1])).append("</td></tr>\n");
@@ -208,7 +210,9 @@ final class HtmlReport {
     } else {
       h.append("<strong>").append(flagged.size()).append(" of ").append(d.summary().size())
           .append(" parameters are beyond the limits</strong> (shaded): ")
-          .append(esc(String.join(", ", flagged)))
+          .append(esc(flagged.size() <= 12 ? String.join(", ", flagged)
+              : String.join(", ", flagged.subList(0, 12)) + " and " + (flagged.size() - 12)
+                  + " more"))
           .append(". Treat results that depend on them with extra care, or run longer chains.");
     }
     h.append("</p>\n<div class=\"scroll\"><table>\n<tr><th class=\"t\">parameter</th>")
@@ -335,7 +339,7 @@ final class HtmlReport {
           .append(e.otherStores().size()).append(" more.");
     }
     h.append("</p>\n");
-    image(Charts.heatMap("Store " + e.storeId() + ": elasticity of share (row) to price (column)",
+    image(Charts.heatMap("Store " + e.storeId() + ": price elasticities",
         "share of", "price of", e.products(), e.mean()),
         "Elasticity heat map for store " + e.storeId());
   }

@@ -35,6 +35,22 @@ public final class ReportJob {
   /** Where the report went, how many charts it holds, and what it could not show. */
   public record Result(String path, int charts, List<String> notes) {}
 
+  /**
+   * Whether {@code runDir} (or the estimation run it names) holds any table the report draws,
+   * so a caller such as {@code demo} can skip a report that would be notes only.
+   */
+  public static boolean hasTables(SparkSession spark, String runDir) {
+    RunTables tables = RunTables.open(spark.sparkContext().hadoopConfiguration(), runDir,
+        List.of());
+    for (String t : List.of(RunTables.SUMMARY, RunTables.GLOBAL_DRAWS, RunTables.STORE_SUMMARY,
+        RunTables.ELASTICITIES, RunTables.RECOMMENDATIONS)) {
+      if (tables.find(t) != null) {
+        return true;
+      }
+    }
+    return false;
+  }
+
   public static Result run(SparkSession spark, Options o, PrintWriter out) {
     RunTables tables = RunTables.open(spark.sparkContext().hadoopConfiguration(), o.run(),
         o.extraRuns());

@@ -84,7 +84,8 @@ final class ReportReader {
   private Dataset<Row> open(String table, String why, String... columns) {
     String path = tables.find(table);
     if (path == null) {
-      notes.add("No " + table + " table in the run folders given, so " + why + " is not shown.");
+      notes.add("No " + table + " table in the run folders given, so the report has no " + why
+          + ".");
       return null;
     }
     Dataset<Row> ds = spark.read().parquet(path);
@@ -96,15 +97,15 @@ final class ReportReader {
       }
     }
     if (!missing.isEmpty()) {
-      notes.add("The " + table + " table at " + path + " lacks column(s) " + missing + ", so "
-          + why + " is not shown.");
+      notes.add("The " + table + " table at " + path + " lacks column(s) " + missing + ", so"
+          + " the report has no " + why + ".");
       return null;
     }
     return ds;
   }
 
   private List<ParameterRow> summary() {
-    Dataset<Row> ds = open(RunTables.SUMMARY, "the convergence table", "parameter", "mean", "sd",
+    Dataset<Row> ds = open(RunTables.SUMMARY, "convergence table", "parameter", "mean", "sd",
         "q05", "q50", "q95", "rhat", "ess_bulk", "ess_tail", "mcse_mean");
     List<ParameterRow> out = new ArrayList<>();
     if (ds == null) {
@@ -138,7 +139,7 @@ final class ReportReader {
   }
 
   private Map<String, double[][]> keyDraws() {
-    Dataset<Row> ds = open(RunTables.GLOBAL_DRAWS, "the posterior densities and traces", "chain",
+    Dataset<Row> ds = open(RunTables.GLOBAL_DRAWS, "posterior densities and traces", "chain",
         "draw", "parameter", "value");
     Map<String, double[][]> out = new LinkedHashMap<>();
     if (ds == null) {
@@ -186,7 +187,7 @@ final class ReportReader {
   private List<ScenarioBands> bands() {
     String[] cols = {"scenario", "store_id", "region", "scope", "metric", "draws", "mean", "q05",
         "q25", "q50", "q75", "q95", "prob_gain"};
-    Dataset<Row> stores = open(RunTables.STORE_SUMMARY, "the per-store revenue change bands",
+    Dataset<Row> stores = open(RunTables.STORE_SUMMARY, "per-store revenue change bands",
         cols);
     List<ScenarioBands> out = new ArrayList<>();
     if (stores == null) {
@@ -197,7 +198,7 @@ final class ReportReader {
       byScenario.computeIfAbsent(row.getString(0), k -> new ArrayList<>()).add(band(row));
     }
     Map<String, List<Band>> regions = new HashMap<>();
-    Dataset<Row> reg = open(RunTables.REGION_SUMMARY, "the regional revenue change table",
+    Dataset<Row> reg = open(RunTables.REGION_SUMMARY, "regional revenue change table",
         "scenario", "region", "scope", "metric", "draws", "mean", "q05", "q25", "q50", "q75",
         "q95", "prob_gain");
     if (reg != null) {
@@ -229,7 +230,7 @@ final class ReportReader {
   }
 
   private ElasticityMatrix elasticities(String store) {
-    Dataset<Row> ds = open(RunTables.ELASTICITIES, "the elasticity heat map", "store_id",
+    Dataset<Row> ds = open(RunTables.ELASTICITIES, "elasticity heat map", "store_id",
         "region", "product_id", "wrt_product_id", "draws", "elasticity");
     if (ds == null) {
       if (store != null) {
@@ -285,7 +286,7 @@ final class ReportReader {
   }
 
   private Table recommendations() {
-    Dataset<Row> ds = open(RunTables.RECOMMENDATIONS, "the recommendations table", "store_id",
+    Dataset<Row> ds = open(RunTables.RECOMMENDATIONS, "recommendations table", "store_id",
         "product_id", "current_price", "recommended_price");
     if (ds == null) {
       return null;

@@ -64,8 +64,8 @@ class ReportBrowserTest {
     spark.stop();
   }
 
-  @Test
-  void opensInHeadlessChromiumWithoutErrors() throws IOException {
+  /** Headless Chromium with a fresh profile and the console log kept; fails if it is absent. */
+  static ChromeDriver startBrowser() throws IOException {
     assertTrue(Files.isExecutable(Path.of(CHROMIUM)) && Files.isExecutable(Path.of(CHROMEDRIVER)),
         "this test needs Debian's Chromium and its driver at " + CHROMIUM + " and " + CHROMEDRIVER
             + "; install them with 'apt-get install -y chromium chromium-driver' (.ci/run does)");
@@ -82,29 +82,58 @@ class ReportBrowserTest {
     ChromeDriverService service = new ChromeDriverService.Builder()
         .usingDriverExecutable(new File(CHROMEDRIVER)).usingAnyFreePort().build();
     ChromeDriver driver = new ChromeDriver(service, options);
-    try {
-      driver.manage().timeouts().pageLoadTimeout(Duration.ofSeconds(60));
-      driver.get(index.toUri().toString());
-      JavascriptExecutor js = driver;
-      Object ready = js.executeScript("return document.readyState");
-      assertEquals("complete", ready);
+    driver.manage().timeouts().pageLoadTimeout(Duration.ofSeconds(60));
+    return driver;
+  }
 
-      List<WebElement> images = driver.findElements(By.tagName("img"));
-      assertEquals(15, images.size(), "charts on the page");
-      for (WebElement img : images) {
-        @SuppressWarnings("unchecked")
-        Map<String, Object> size = (Map<String, Object>) js.executeScript(
-            "const i = arguments[0]; return {done: i.complete, w: i.naturalWidth,"
-                + " h: i.naturalHeight, dw: i.getAttribute('width'),"
-                + " dh: i.getAttribute('height')};", img);
-        String alt = img.getAttribute("alt");
-        assertEquals(Boolean.TRUE, size.get("done"), alt);
-        long w = ((Number) size.get("w")).longValue();
-        long h = ((Number) size.get("h")).longValue();
-        assertTrue(w > 0 && h > 0, alt + ": image did not render (" + w + "x" + h + ")");
-        assertEquals(Long.parseLong((String) size.get("dw")), w, alt);
-        assertEquals(Long.parseLong((String) size.get("dh")), h, alt);
+  /** Opens {@code page} and waits for the load to finish. */
+  static void open(ChromeDriver driver, Path page) {
+    driver.get(page.toUri().toString());
+    assertEquals("complete", driver.executeScript("return document.readyState"));
+  }
+
+  /** Per image: alt text -> {natural width, natural height, declared width, declared height}. */
+  static Map<String, long[]> imageSizes(ChromeDriver driver) {
+    Map<String, long[]> out = new java.util.LinkedHashMap<>();
+    for (WebElement img : driver.findElements(By.tagName("img"))) {
+      @SuppressWarnings("unchecked")
+      Map<String, Object> size = (Map<String, Object>) driver.executeScript(
+          "const i = arguments[0]; return {done: i.complete, w: i.naturalWidth,"
+              + " h: i.naturalHeight, dw: i.getAttribute('width'),"
+              + " dh: i.getAttribute('height')};", img);
+      assertEquals(Boolean.TRUE, size.get("done"), "image still loading");
+      out.put(img.getAttribute("alt"), new long[] {((Number) size.get("w")).longValue(),
+          ((Number) size.get("h")).longValue(), Long.parseLong((String) size.get("dw")),
+          Long.parseLong((String) size.get("dh"))});
+    }
+    return out;
+  }
+
+  /** Console messages at SEVERE or above since the last call. */
+  static List<String> severeLogs(ChromeDriver driver) {
+    List<String> severe = new ArrayList<>();
+    for (LogEntry e : driver.manage().logs().get(LogType.BROWSER)) {
+      if (e.getLevel().intValue() >= Level.SEVERE.intValue()) {
+        severe.add(e.getMessage());
       }
+    }
+    return severe;
+  }
+
+  @Test
+  void opensInHeadlessChromiumWithoutErrors() throws IOException {
+    ChromeDriver driver = startBrowser();
+    try {
+      open(driver, index);
+      JavascriptExecutor js = driver;
+      Map<String, long[]> images = imageSizes(driver);
+      assertEquals(15, images.size(), "charts on the page");
+      images.forEach((alt, s) -> {
+        assertTrue(s[0] > 0 && s[1] > 0, alt + ": image did not render (" + s[0] + "x" + s[1]
+            + ")");
+        assertEquals(s[2], s[0], alt + ": natural width");
+        assertEquals(s[3], s[1], alt + ": natural height");
+      });
 
       String cautions = driver.findElement(By.id("cautions")).getText();
       assertTrue(cautions.contains(HtmlReport.CAUTIONS_HEADING), cautions);
@@ -113,12 +142,7 @@ class ReportBrowserTest {
       assertTrue(cautions.contains("competition law"), cautions);
       assertTrue(driver.findElement(By.id("convergence")).isDisplayed());
 
-      List<String> severe = new ArrayList<>();
-      for (LogEntry e : driver.manage().logs().get(LogType.BROWSER)) {
-        if (e.getLevel().intValue() >= Level.SEVERE.intValue()) {
-          severe.add(e.getMessage());
-        }
-      }
+      List<String> severe = severeLogs(driver);
       assertTrue(severe.isEmpty(), "browser console errors: " + severe);
 
       // the whole page in one screenshot: make the window as tall as the document
@@ -131,6 +155,30 @@ class ReportBrowserTest {
       Files.copy(shot.toPath(), kept, StandardCopyOption.REPLACE_EXISTING);
       Files.copy(index, ARTIFACTS.resolve("index.html"), StandardCopyOption.REPLACE_EXISTING);
       assertTrue(Files.size(kept) > 10_000, "screenshot " + kept + " is suspiciously small");
+    } finally {
+      driver.quit();
+    }
+  }
+
+  /**
+   * Control: on a page with a broken image and a script error, the same checks do fail, so
+   * their silence on the report means something.
+   */
+  @Test
+  void theChecksCatchABrokenPage() throws IOException {
+    Path bad = tmp.resolve("broken.html");
+    Files.writeString(bad, "<!DOCTYPE html><html><head><meta charset=\"utf-8\"></head><body>"
+        + "<img alt=\"broken\" width=\"10\" height=\"10\" src=\"data:image/png;base64,AAAA\">"
+        + "<script>console.error('deliberate failure');</script></body></html>");
+    ChromeDriver driver = startBrowser();
+    try {
+      open(driver, bad);
+      long[] s = imageSizes(driver).get("broken");
+      assertEquals(0, s[0], "a broken image has natural width 0");
+      assertEquals(0, s[1], "a broken image has natural height 0");
+      List<String> severe = severeLogs(driver);
+      assertTrue(severe.stream().anyMatch(m -> m.contains("deliberate failure")),
+          "console.error must show as SEVERE: " + severe);
     } finally {
       driver.quit();
     }
