@@ -9,7 +9,6 @@ import aislecast.jobs.config.SamplerConfig;
 import aislecast.jobs.estimate.EstimateJob;
 import aislecast.jobs.spark.SparkSessions;
 import java.io.PrintWriter;
-import java.io.StringWriter;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.ArrayList;
@@ -21,8 +20,8 @@ import picocli.CommandLine.Option;
 
 /**
  * {@code aislecast estimate-bench}: a benchmark, not a test. Generates the demo scenario at 1x,
- * 2x, 4x ... its number of stores (1x is the bundled chilled-drinks sample: same settings and
- * seed), runs the estimate job on each for a fixed number of sweeps and prints a table: wall time
+ * 2x, 4x ... a base number of stores (default the demo's 60, where 1x is the bundled
+ * chilled-drinks sample: same settings and seed), runs the estimate job on each for a fixed number of sweeps and prints a table: wall time
  * of the sweeps, sweeps per second, the smallest bulk ESS over global parameters, ESS per second,
  * and where the sweep time goes (model work inside the tasks versus Spark and driver overhead).
  */
@@ -36,6 +35,11 @@ public final class EstimateBenchCommand implements Callable<Integer> {
   @Option(names = "--scales", split = ",", defaultValue = "1,2,4",
       description = "Multiples of the demo's 60 stores (default: ${DEFAULT-VALUE}).")
   List<Integer> scales;
+
+  @Option(names = "--base-stores", defaultValue = "60",
+      description = "Stores at scale 1 (default: ${DEFAULT-VALUE}, the demo's); other settings"
+          + " are the demo scenario's.")
+  int baseStores;
 
   @Option(names = "--warmup", defaultValue = "20", description = "Warmup sweeps (default: ${DEFAULT-VALUE}).")
   int warmup;
@@ -60,7 +64,7 @@ public final class EstimateBenchCommand implements Callable<Integer> {
     SamplerConfig sc = SamplerConfig.defaults().withSweeps(warmup, sampling);
     sc = new SamplerConfig(chains, sc.warmup(), sc.sampling(), sc.localSteps(),
         sc.leapfrogSteps(), sc.targetAccept(), sc.shopperDraws(), sc.checkpointEvery(),
-        sc.rhatMax(), sc.essMin(), 1000, sc.partitions(), sc.sumGroup(), sc.ridgeMove(),
+        sc.rhatMax(), sc.essMin(), 1, sc.partitions(), sc.sumGroup(), sc.ridgeMove(),
         sc.fixLambdaZero());
     RunConfig config = RunConfig.defaults().withSampler(sc);
     List<String> rows = new ArrayList<>();
@@ -69,7 +73,7 @@ public final class EstimateBenchCommand implements Callable<Integer> {
       cores = spark.spark().sparkContext().defaultParallelism();
       for (int scale : scales) {
         SimSettings demo = SimSettings.demo();
-        SimSettings s = demo.withSizes(demo.stores() * scale, demo.weeks(), demo.products(),
+        SimSettings s = demo.withSizes(baseStores * scale, demo.weeks(), demo.products(),
             demo.owners(), demo.attributes(), demo.draws());
         Path input = dir.resolve("data-x" + scale);
         if (!Files.exists(input)) {
@@ -78,11 +82,9 @@ public final class EstimateBenchCommand implements Callable<Integer> {
         String runId = "bench-x" + scale + "-" + System.currentTimeMillis();
         out.println("estimate-bench: " + s.stores() + " stores (" + scale + "x), " + chains
             + " chains, " + warmup + " + " + sampling + " sweeps, master " + master + " ...");
-        StringWriter log = new StringWriter();
         EstimateJob.Result r = EstimateJob.run(spark.spark(), config,
             EstimateJob.Options.of(input.toString(), dir.resolve("runs").toString(), runId,
-                CommonOptions.DEFAULT_SEED).withAllowUnconverged(true),
-            new PrintWriter(log, true));
+                CommonOptions.DEFAULT_SEED).withAllowUnconverged(true), out);
         double minEss = Double.POSITIVE_INFINITY;
         for (ParameterSummary p : r.summaries()) {
           if (Double.isFinite(p.essBulk())) {

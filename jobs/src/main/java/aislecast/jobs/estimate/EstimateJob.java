@@ -275,7 +275,7 @@ public final class EstimateJob {
       Result result = new Result(status, run.target(), names, rec.kept, summaries, failures,
           rec.nextSweep(), rec.sweepSeconds, rec.modelSeconds, rec.aggregateSeconds,
           rec.driverSeconds, problem);
-      printOutputs(out, result, sc);
+      printOutputs(out, result, sc, jsc.defaultParallelism());
       StringBuilder phases = new StringBuilder("  timings:");
       timings.forEach((k, v) -> phases.append(String.format(Locale.ROOT, " %s %.1fs", k, v)));
       out.println(phases);
@@ -323,11 +323,13 @@ public final class EstimateJob {
     return out;
   }
 
-  private static void printOutputs(PrintWriter out, Result r, SamplerConfig sc) {
+  private static void printOutputs(PrintWriter out, Result r, SamplerConfig sc, int cores) {
+    // model work is summed over parallel tasks, so compare it with the core-seconds available
     out.printf(Locale.ROOT, "estimate: %d sweeps in %s (%.2f sweeps/s; model work %.0f%% of"
-        + " task time)%n", r.sweepsDone(), SweepLoop.clock(r.sweepSeconds()),
+        + " %d cores' time, the rest is Spark and driver overhead or idle cores)%n",
+        r.sweepsDone(), SweepLoop.clock(r.sweepSeconds()),
         r.sweepsDone() / Math.max(1e-9, r.sweepSeconds()),
-        100 * r.modelSeconds() / Math.max(1e-9, r.sweepSeconds()));
+        100 * r.modelSeconds() / Math.max(1e-9, r.sweepSeconds() * cores), cores);
     double worst = Double.NaN;
     double minEss = Double.NaN;
     for (ParameterSummary s : r.summaries()) {

@@ -28,6 +28,9 @@ import java.nio.file.Path;
 import java.util.Arrays;
 import java.util.List;
 import java.util.stream.Stream;
+import java.util.concurrent.atomic.AtomicInteger;
+import org.apache.spark.scheduler.SparkListener;
+import org.apache.spark.scheduler.SparkListenerTaskEnd;
 import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.SparkSession;
@@ -151,10 +154,22 @@ class EstimateJobTest {
   }
 
   @Test
-  void aTaskFailureAndRetryGiveIdenticalDraws() {
+  void aTaskFailureAndRetryGiveIdenticalDraws() throws Exception {
     SamplerConfig sc = small(2, 64);
     // local[2,4]: 2 threads, a task may fail up to 4 times
-    EstimateJob.Result r = run(spark("local[2,4]"), sc, options("c").withFailAtSweep(5));
+    SparkSession spark = spark("local[2,4]");
+    AtomicInteger failed = new AtomicInteger();
+    spark.sparkContext().addSparkListener(new SparkListener() {
+      @Override
+      public void onTaskEnd(SparkListenerTaskEnd end) {
+        if (end.taskInfo().failed()) {
+          failed.incrementAndGet();
+        }
+      }
+    });
+    EstimateJob.Result r = run(spark, sc, options("c").withFailAtSweep(5));
+    spark.sparkContext().listenerBus().waitUntilEmpty();
+    assertEquals(1, failed.get(), "exactly the injected task failed once and was retried");
     assertSameDraws(reference(r, sc), r.globalDraws());
   }
 
@@ -225,6 +240,8 @@ class EstimateJobTest {
     // a warm start from this run starts its chains from the run's final state
     EstimateJob.Result warm = run(spark, sc, options("e2").withWarmStart(r.runDir()));
     assertNotEquals(EstimateJob.Status.STOPPED, warm.status());
+    // same data, seed and settings as run e: only the starting point differs, so equal draws
+    // would mean the warm start was ignored
     assertFalse(Arrays.deepEquals(r.globalDraws(), warm.globalDraws()));
   }
 
