@@ -1,7 +1,7 @@
 package aislecast.core.scenario;
 
+import aislecast.core.equilibrium.EquilibriumSettings;
 import aislecast.core.equilibrium.EquilibriumSolver;
-import aislecast.core.equilibrium.MarginalCosts;
 import aislecast.core.equilibrium.MarketModel;
 import aislecast.core.equilibrium.SolveInfo;
 import java.util.ArrayList;
@@ -14,51 +14,73 @@ import java.util.List;
  * it), with the other products responding by {@code nash} (they re-set to the Bertrand-Nash
  * equilibrium given the portfolio's prices: the portfolio leads) or {@code hold}.
  *
- * <p>Per draw, costs come from the first-order conditions at current prices (known costs, e.g. the
- * user's own, override them). Note that with every portfolio cost taken from the first-order
- * conditions the current prices are, by construction, the portfolio's best reply under {@code
- * hold}; recommendations then come from the leader's advantage under {@code nash}, from known
- * costs, or from the posterior spread.
+ * <p>Per draw, costs are those of its {@link BaseDraw}: from the first-order conditions at current
+ * prices, with known costs (e.g. the user's own) in their place. Draws whose costs could not be
+ * recovered are left out and counted. Note that with every portfolio cost taken from the
+ * first-order conditions the current prices are, by construction, the portfolio's best reply under
+ * {@code hold}; recommendations then come from the leader's advantage under {@code nash}, from
+ * known costs, or from the posterior spread.
  *
  * <p>Search: compass (coordinate pattern) search, derivative-free because the competitors'
- * equilibrium makes the objective's gradient costly and a quantile objective is not smooth. From
- * the current prices (clamped to the guard-rails), each product's price is tried a step {@code h}
- * up and down (as a fraction of its current price); an improvement is kept at once; a sweep over
+ * equilibrium makes the objective's gradient costly and a quantile objective is not smooth (so
+ * model-based searches such as BOBYQA, whose quadratic models assume smoothness, are not used).
+ * From the current prices (clamped to the guard-rails), each product's price is tried a step {@code
+ * h} up and down (as a fraction of its current price); an improvement is kept at once; a sweep over
  * all products without one halves {@code h}. {@code h} starts at half the maximum move and the
- * search stops below {@code minStepPercent} or at {@code maxEvaluations}. Every evaluation uses
- * the same draws (common random numbers), so the objective is a deterministic function of the
- * prices; each draw's competitor prices are warm-started from its last equilibrium. The result is
- * a local optimum within the box, never worse than the current prices.
+ * search stops below {@code minStepPercent} or at {@code maxEvaluations}. Every evaluation uses the
+ * same draws (common random numbers), so the objective is a deterministic function of the prices;
+ * each draw's competitor prices are warm-started from its last equilibrium. The result is a local
+ * optimum within the box, never worse than the current prices. A candidate for which an equilibrium
+ * fails in any draw is rejected (and counted), so every reported figure comes from converged
+ * equilibria.
  *
  * <p>One instance per thread (owns its buffers).
  */
 public final class PriceRecommender {
   private final MarketModel model;
   private final EquilibriumSolver solver;
-  private final MarginalCosts costs;
+  private final ScenarioEvaluator bases;
   private final double[] price;
   private final boolean[] free;
 
   public PriceRecommender(int maxShoppers, int maxProducts) {
     model = new MarketModel(maxShoppers, maxProducts);
     solver = new EquilibriumSolver(maxShoppers, maxProducts);
-    costs = new MarginalCosts(maxShoppers, maxProducts);
+    bases = new ScenarioEvaluator(maxShoppers, maxProducts, EquilibriumSettings.defaults(), false);
     price = new double[maxProducts];
     free = new boolean[maxProducts];
   }
 
   /**
+   * Builds each draw's base (costs recovered at current prices, known costs kept) with {@link
+   * ScenarioEvaluator#base} and recommends from those draws.
+   *
    * @param market the store (current prices are its base prices)
    * @param psi heterogeneity draws, D x Kpsi
    * @param delta mean utilities per draw, D x J (store's product order)
    */
   public Recommendation recommend(BaseMarket market, double[][] psi, double[][] delta,
       RecommendSettings settings) {
-    int j = market.products();
     if (psi.length != delta.length || psi.length == 0) {
       throw new IllegalArgumentException("store " + market.storeId() + ": " + psi.length
           + " psi draws and " + delta.length + " delta draws");
     }
+    List<BaseDraw> draws = new ArrayList<>(psi.length);
+    for (int d = 0; d < psi.length; d++) {
+      draws.add(bases.base(market, psi[d], delta[d]));
+    }
+    return recommend(draws, settings);
+  }
+
+  /**
+   * @param draws base draws of one store (from {@link ScenarioEvaluator#base}); draws whose costs
+   *     could not be recovered are left out and counted
+   */
+  public Recommendation recommend(List<BaseDraw> draws, RecommendSettings settings) {
+    if (draws.isEmpty()) {
+      throw new IllegalArgumentException("no posterior draws");
+    }
+    BaseMarket market = draws.get(0).market();
     int[] portfolio = portfolio(market);
     if (portfolio.length == 0) {
       throw new IllegalArgumentException("store " + market.storeId()
@@ -66,35 +88,22 @@ public final class PriceRecommender {
     }
     List<String> notes = new ArrayList<>();
     Work w = new Work(market, portfolio, settings);
-    // per draw: costs at current prices
     int dropped = 0;
     int nonPositive = 0;
-    List<Integer> used = new ArrayList<>();
-    double[][] cost = new double[psi.length][];
-    boolean[] flags = new boolean[j];
-    for (int d = 0; d < psi.length; d++) {
-      if (delta[d].length != j) {
-        throw new IllegalArgumentException("store " + market.storeId() + ", draw " + d + ": "
-            + delta[d].length + " mean utilities for " + j + " products");
+    List<BaseDraw> used = new ArrayList<>();
+    for (int d = 0; d < draws.size(); d++) {
+      BaseDraw b = draws.get(d);
+      if (b.market() != market) {
+        throw new IllegalArgumentException("draws of stores " + market.storeId() + " and "
+            + b.market().storeId() + " mixed");
       }
-      load(market, psi[d], delta[d]);
-      double[] c = new double[j];
-      MarginalCosts.Info info = costs.recover(model, market.priceView(), c, flags);
-      if (!info.solved()) {
+      if (!b.costInfo().solved()) {
         dropped++;
-        notes.add("draw " + d + " left out: " + info.failure());
+        notes.add("draw " + d + " left out: " + b.costInfo().failure());
         continue;
       }
-      for (int p = 0; p < j; p++) {
-        double known = market.knownCost(p);
-        if (!Double.isNaN(known)) {
-          c[p] = known;
-        } else if (flags[p]) {
-          nonPositive++;
-        }
-      }
-      cost[d] = c;
-      used.add(d);
+      nonPositive += b.nonPositiveCosts();
+      used.add(b);
     }
     int k = portfolio.length;
     String[] ids = new String[k];
@@ -102,17 +111,20 @@ public final class PriceRecommender {
     double[] lower = new double[k];
     double[] upper = new double[k];
     double[] floor = new double[k];
+    double[] meanCost = new double[k];
     int n = used.size();
     for (int q = 0; q < k; q++) {
       int p = portfolio[q];
       ids[q] = market.productId(p);
       current[q] = market.price(p);
-      double[] cs = new double[Math.max(n, 1)];
+      double[] cs = new double[n];
       for (int u = 0; u < n; u++) {
-        cs[u] = cost[used.get(u)][p];
+        cs[u] = used.get(u).cost()[p];
+        meanCost[q] += cs[u] / n;
       }
-      Arrays.sort(cs, 0, n);
-      floor[q] = n == 0 ? Double.NaN : Bands.quantile(Arrays.copyOf(cs, n), settings.costFloorQuantile());
+      Arrays.sort(cs);
+      floor[q] = n == 0 ? Double.NaN : Bands.quantile(cs, settings.costFloorQuantile());
+      meanCost[q] = n == 0 ? Double.NaN : meanCost[q];
       upper[q] = current[q] * (1 + settings.maxMovePercent() / 100);
       lower[q] = Math.max(current[q] * (1 - settings.maxMovePercent() / 100), floor[q]);
       if (lower[q] > upper[q]) {
@@ -124,10 +136,11 @@ public final class PriceRecommender {
     if (n == 0) {
       notes.add("no draw with recoverable costs: current prices kept");
       return new Recommendation(market.storeId(), ids, current, current.clone(), lower, upper,
-          floor, Double.NaN, Double.NaN, Bands.of(new double[0], 0), Bands.of(new double[0], 0),
+          floor, meanCost, Double.NaN, Double.NaN, Bands.of(new double[0], 0),
+          Bands.of(new double[0], 0),
           emptyBands(k), 0, dropped, nonPositive, 0, 0, false, notes);
     }
-    w.init(psi, delta, cost, used);
+    w.init(used);
 
     // current prices (the reference) and the search start (current, clamped to the rails)
     double[] x = current.clone();
@@ -135,7 +148,8 @@ public final class PriceRecommender {
     if (atCurrent == null) {
       notes.add("an equilibrium failed at current prices: " + w.lastFailure);
       return new Recommendation(market.storeId(), ids, current, current.clone(), lower, upper,
-          floor, Double.NaN, Double.NaN, Bands.of(new double[0], 0), Bands.of(new double[0], 0),
+          floor, meanCost, Double.NaN, Double.NaN, Bands.of(new double[0], 0),
+          Bands.of(new double[0], 0),
           emptyBands(k), n, dropped, nonPositive, w.evaluations, 1, false, notes);
     }
     boolean clamped = false;
@@ -209,8 +223,8 @@ public final class PriceRecommender {
       unitsChange[q] = Bands.of(du, n);
     }
     return new Recommendation(market.storeId(), ids, current, x.clone(), lower, upper, floor,
-        atCurrent.objective, best.objective, Bands.of(dm, n), Bands.of(dr, n), unitsChange, n,
-        dropped, nonPositive, w.evaluations, rejected, converged, notes);
+        meanCost, atCurrent.objective, best.objective, Bands.of(dm, n), Bands.of(dr, n),
+        unitsChange, n, dropped, nonPositive, w.evaluations, rejected, converged, notes);
   }
 
   private static Bands[] emptyBands(int k) {
@@ -247,10 +261,7 @@ public final class PriceRecommender {
     final BaseMarket market;
     final int[] portfolio;
     final RecommendSettings settings;
-    double[][] psi;
-    double[][] delta;
-    double[][] cost;
-    int[] draws;
+    BaseDraw[] draws;
     double[][] warm;
     int evaluations;
     String lastFailure;
@@ -261,11 +272,8 @@ public final class PriceRecommender {
       this.settings = settings;
     }
 
-    void init(double[][] psi, double[][] delta, double[][] cost, List<Integer> used) {
-      this.psi = psi;
-      this.delta = delta;
-      this.cost = cost;
-      this.draws = used.stream().mapToInt(Integer::intValue).toArray();
+    void init(List<BaseDraw> used) {
+      this.draws = used.toArray(new BaseDraw[0]);
       this.warm = new double[draws.length][];
       for (int u = 0; u < draws.length; u++) {
         warm[u] = market.prices();
@@ -287,16 +295,17 @@ public final class PriceRecommender {
         free[portfolio[q]] = false;
       }
       for (int u = 0; u < n; u++) {
-        int d = draws[u];
-        load(market, psi[d], delta[d]);
+        BaseDraw b = draws[u];
+        double[] cost = b.cost();
+        load(market, b.psi(), b.delta());
         System.arraycopy(warm[u], 0, price, 0, j);
         for (int q = 0; q < k; q++) {
           price[portfolio[q]] = x[q];
         }
         if (settings.response() == Response.NASH) {
-          SolveInfo info = solver.solve(model, cost[d], free, price, settings.equilibrium());
+          SolveInfo info = solver.solve(model, cost, free, price, settings.equilibrium());
           if (!info.converged()) {
-            lastFailure = "draw " + d + ": " + info.failure();
+            lastFailure = "used draw " + u + ": " + info.failure();
             return null;
           }
           System.arraycopy(price, 0, warm[u], 0, j);
@@ -310,7 +319,7 @@ public final class PriceRecommender {
           int p = portfolio[q];
           double un = s[p] * m;
           units[u * k + q] = un;
-          mg += (price[p] - cost[d][p]) * un;
+          mg += (price[p] - cost[p]) * un;
           rv += price[p] * un;
         }
         margin[u] = mg;

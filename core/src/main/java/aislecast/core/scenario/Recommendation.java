@@ -12,6 +12,7 @@ import java.util.List;
  * @param lower guard-rail per product: max(current x (1 - max move), cost floor)
  * @param upper guard-rail per product: current x (1 + max move)
  * @param costFloor the cost quantile prices never go below
+ * @param meanCost posterior mean of each product's marginal cost over the used draws
  * @param objectiveCurrent objective (mean or quantile of portfolio margin) at current prices
  * @param objectiveRecommended objective at the recommended prices
  * @param marginChange per-draw change of portfolio margin, recommended minus current
@@ -27,6 +28,7 @@ import java.util.List;
  */
 public record Recommendation(String storeId, String[] productIds, double[] currentPrice,
     double[] recommendedPrice, double[] lower, double[] upper, double[] costFloor,
+    double[] meanCost,
     double objectiveCurrent, double objectiveRecommended, Bands marginChange, Bands revenueChange,
     Bands[] unitsChange, int drawsUsed, int drawsDropped, int nonPositiveCosts, int evaluations,
     int rejectedCandidates, boolean converged, List<String> notes) {

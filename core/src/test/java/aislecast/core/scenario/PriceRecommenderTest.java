@@ -172,4 +172,137 @@ class PriceRecommenderTest {
         s.with(8, Response.NASH, 0.1));
     assertTrue(cautious.objectiveRecommended() >= cautious.objectiveCurrent());
   }
+
+  private static final double ALPHA = 1.4;
+
+  /** Plain-logit market: kx = 1 with vanishing spread, so every shopper has alpha = ALPHA. */
+  private static BaseMarket logitMarket(String[] owners, double[] price, double[] cost) {
+    int r = 5;
+    int j = owners.length;
+    double[] nu = new double[r * 2];
+    for (int i = 0; i < nu.length; i++) {
+      nu[i] = Math.cos(i + 0.5);
+    }
+    String[] ids = new String[j];
+    double[] x = new double[j];
+    for (int p = 0; p < j; p++) {
+      ids[p] = "P" + p;
+      x[p] = 0.1 * p;
+    }
+    return new BaseMarket("S1", ids, owners, 1, x, price, 5000.0, nu, r, cost, Set.of("own"));
+  }
+
+  private static double[] logitPsi() {
+    return new double[] {Math.log(ALPHA), -40, -40};
+  }
+
+  private static double[] logitShares(double[] delta, double[] price) {
+    double den = 1;
+    double[] e = new double[delta.length];
+    for (int p = 0; p < delta.length; p++) {
+      e[p] = Math.exp(delta[p] - ALPHA * price[p]);
+      den += e[p];
+    }
+    for (int p = 0; p < delta.length; p++) {
+      e[p] /= den;
+    }
+    return e;
+  }
+
+  // a plain-logit store where the portfolio ("own") sells products 0 and 1 at known costs
+  private static final double[] PRICE = {2.0, 2.5, 2.2, 1.8};
+  private static final double[] COST = {1.2, 1.6, 1.0, 1.1};
+  private static final double[] DELTA = {1.0, 1.3, 0.8, 0.5};
+
+  private static BaseDraw twoOwnProducts() {
+    BaseMarket m = logitMarket(new String[] {"own", "own", "b", "c"}, PRICE, COST);
+    return new ScenarioEvaluator(5, 4).base(m, logitPsi(), DELTA);
+  }
+
+  /**
+   * Multi-product logit firm, rivals hold: every own product carries the same markup
+   * 1 / (alpha (1 - sum of the firm's shares)) (Anderson, de Palma and Thisse 1992; from memory).
+   * Shares are recomputed here by the closed-form logit, not by the project's market model.
+   */
+  @Test
+  void multiProductLogitCommonMarkup() {
+    Recommendation r = new PriceRecommender(5, 4).recommend(List.of(twoOwnProducts()),
+        RecommendSettings.defaults().with(90, Response.HOLD, Double.NaN)
+            .withSearch(1e-6, 100_000));
+    assertTrue(r.converged());
+    double[] q = PRICE.clone();
+    q[0] = r.recommendedPrice()[0];
+    q[1] = r.recommendedPrice()[1];
+    double[] s = logitShares(DELTA, q);
+    double markup = 1 / (ALPHA * (1 - s[0] - s[1]));
+    assertEquals(markup, q[0] - COST[0], 1e-4);
+    assertEquals(markup, q[1] - COST[1], 1e-4);
+    assertEquals(COST[0], r.meanCost()[0], 0.0);
+    assertEquals(COST[1], r.meanCost()[1], 0.0);
+  }
+
+  /** Guard-rails bind: a tight max move keeps every price within current x (1 +- move). */
+  @Test
+  void guardRailsBind() {
+    Recommendation r = new PriceRecommender(5, 4).recommend(List.of(twoOwnProducts()),
+        RecommendSettings.defaults().with(2, Response.HOLD, Double.NaN));
+    for (int q = 0; q < 2; q++) {
+      assertTrue(r.recommendedPrice()[q] <= PRICE[q] * 1.02 + 1e-12);
+      assertTrue(r.recommendedPrice()[q] >= PRICE[q] * 0.98 - 1e-12);
+      assertTrue(r.recommendedPrice()[q] >= r.meanCost()[q]);
+    }
+    // unconstrained optimum markups are above the current ones here, so the upper rail binds
+    assertEquals(PRICE[0] * 1.02, r.recommendedPrice()[0], 1e-6);
+  }
+
+  /**
+   * Random coefficients, rivals re-set to Bertrand-Nash (demo store, true parameters, costs from
+   * the first-order conditions, so base prices are the simultaneous equilibrium): the leader's
+   * optimum gains at least what the base gives (the base is feasible), and it is a local maximum
+   * of the objective: moving any interior price by 0.1% either way, evaluated through
+   * ScenarioEvaluator (an independent path), does not improve it (finite differences, common
+   * practice).
+   */
+  @Test
+  void nashLeaderOptimumIsLocalByFiniteDifferences() {
+    DemoStores.Store st = DEMO.store(5);
+    BaseMarket m = st.market();
+    ScenarioEvaluator ev = new ScenarioEvaluator(m.shoppers(), m.products());
+    BaseDraw b = ev.base(m, st.psi(), st.delta());
+    Recommendation r = new PriceRecommender(m.shoppers(), m.products()).recommend(List.of(b),
+        RecommendSettings.defaults().with(10, Response.NASH, Double.NaN).withSearch(1e-3, 5000));
+    assertTrue(r.converged(), r.notes().toString());
+    assertEquals(0, r.rejectedCandidates());
+    double best = marginAt(m, b, r, 0, r.recommendedPrice()[0]);
+    assertEquals(r.marginChange().mean(), best, 1e-6 * Math.abs(best) + 1e-9);
+    assertTrue(best >= -1e-9, "gain " + best);
+    int interior = 0;
+    for (int q = 0; q < r.productIds().length; q++) {
+      double p = r.recommendedPrice()[q];
+      if (p <= r.lower()[q] * (1 + 1e-3) || p >= r.upper()[q] * (1 - 1e-3)) {
+        continue;
+      }
+      interior++;
+      for (double h : new double[] {-1e-3, 1e-3}) {
+        double moved = marginAt(m, b, r, q, p * (1 + h));
+        assertTrue(moved <= best + 1e-6 * Math.abs(best) + 1e-9,
+            "product " + r.productIds()[q] + " step " + h + ": " + moved + " > " + best);
+      }
+    }
+    System.out.printf("nash leader, store %s: %d of %d prices interior, margin change %.6f%n",
+        m.storeId(), interior, r.productIds().length, best);
+  }
+
+  /** Portfolio margin change when product q of the recommendation is set to {@code p}. */
+  private static double marginAt(BaseMarket m, BaseDraw b, Recommendation r, int q, double p) {
+    List<PriceChange> changes = new ArrayList<>();
+    for (int i = 0; i < r.productIds().length; i++) {
+      changes.add(PriceChange.set(r.productIds()[i], i == q ? p : r.recommendedPrice()[i]));
+    }
+    Scenario sc = new Scenario("probe", changes, List.of(), List.of(), Response.NASH);
+    ScenarioOutcome o = new ScenarioEvaluator(m.shoppers(), m.products())
+        .evaluate(b, ScenarioPlan.of(m, sc));
+    assertTrue(o.solve().converged());
+    return o.portfolioMarginChange();
+  }
 }

@@ -2,10 +2,13 @@ package aislecast.jobs.scenario;
 
 import aislecast.core.demand.ShareInversion;
 import aislecast.core.equilibrium.EquilibriumSettings;
+import aislecast.core.scenario.Bands;
 import aislecast.core.scenario.BaseDraw;
 import aislecast.core.scenario.BaseMarket;
 import aislecast.core.scenario.BaseUtilities;
-import aislecast.core.scenario.PortfolioPricer;
+import aislecast.core.scenario.PriceRecommender;
+import aislecast.core.scenario.RecommendSettings;
+import aislecast.core.scenario.Recommendation;
 import aislecast.core.scenario.Response;
 import aislecast.core.scenario.ScenarioEvaluator;
 import aislecast.jobs.config.RunConfig;
@@ -19,7 +22,6 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
-import org.apache.commons.math3.stat.descriptive.rank.Percentile;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.RowFactory;
@@ -33,7 +35,7 @@ import org.apache.spark.sql.types.StructType;
 /**
  * {@code aislecast recommend}: per store, the portfolio prices within guard-rails that maximise
  * the posterior mean (or a quantile) of the portfolio margin change, with the competitors'
- * response ({@link PortfolioPricer}); one Spark task per group of stores. Writes {@code
+ * response ({@link PriceRecommender}); one Spark task per group of stores. Writes {@code
  * recommendations/} and {@code run.json} in a run folder published whole.
  */
 public final class RecommendJob {
@@ -57,7 +59,10 @@ public final class RecommendJob {
    * One row per store and portfolio product. The margin, revenue and units figures are the
    * store's whole portfolio at the recommended prices against the base (the same on every
    * product row of a store): posterior mean and 5/50/95% quantiles of the margin change, the
-   * probability that it is positive.
+   * probability that it is positive. {@code lower_price} is the guard-rail raised to the cost
+   * floor (the largest marginal cost over draws); {@code skipped_draws} counts draws whose shares
+   * could not be inverted or costs recovered; {@code failed_solves} counts candidate prices the
+   * search rejected because a competitors' equilibrium failed in some draw.
    */
   static final StructType SCHEMA = DataTypes.createStructType(List.of(
       f("store_id", DataTypes.StringType, false), f("region", DataTypes.StringType, true),
@@ -86,6 +91,11 @@ public final class RecommendJob {
   public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
     Map<String, Double> seconds = new LinkedHashMap<>();
     long t0 = System.nanoTime();
+    try {
+      settings(o.maxMove(), o.response(), o.quantile()); // options checked before any work
+    } catch (IllegalArgumentException e) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "recommend options: " + e.getMessage());
+    }
     RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId());
     try {
       String dir = run.staging();
@@ -122,8 +132,8 @@ public final class RecommendJob {
       Response response = o.response();
       JavaRDD<StoreWork> work = ScenarioInputs.withDraws(spark, prep.stores(), posterior, sel,
           prep.catalog().attributes());
-      JavaRDD<Row> rows = work.flatMap(w -> recommend(w, new PortfolioPricer.Settings(maxMove,
-          quantile, response, EquilibriumSettings.defaults(), 2000), objective).iterator());
+      JavaRDD<Row> rows = work.flatMap(w -> recommend(w, settings(maxMove, response, quantile),
+          objective).iterator());
       spark.createDataFrame(rows, SCHEMA).coalesce(1).write().mode(SaveMode.ErrorIfExists)
           .parquet(dir + "/" + RECOMMENDATIONS);
       long count = spark.read().parquet(dir + "/" + RECOMMENDATIONS).count();
@@ -156,12 +166,17 @@ public final class RecommendJob {
     }
   }
 
+  /** The search settings: {@code maxMove} is a fraction here, a percent in the settings. */
+  static RecommendSettings settings(double maxMove, Response response, double quantile) {
+    return RecommendSettings.defaults().with(100 * maxMove, response, quantile);
+  }
+
   private static double secondsSince(long t0) {
     return (System.nanoTime() - t0) / 1e9;
   }
 
   /** One store's recommendation rows (none when the store stocks no portfolio product). */
-  static List<Row> recommend(StoreWork w, PortfolioPricer.Settings settings, String objective) {
+  static List<Row> recommend(StoreWork w, RecommendSettings settings, String objective) {
     BaseMarket market = w.market();
     int j = w.products();
     List<Row> rows = new ArrayList<>();
@@ -190,32 +205,22 @@ public final class RecommendJob {
     if (draws.isEmpty()) {
       return rows;
     }
-    PortfolioPricer.Result r = new PortfolioPricer(w.shoppers(), j).recommend(draws, settings);
-    double[] mc = r.marginChange();
-    Percentile pct = new Percentile().withEstimationType(Percentile.EstimationType.R_7);
-    pct.setData(mc);
-    double gain = 0;
-    for (double v : mc) {
-      gain += v > 0 ? 1 : 0;
+    Recommendation r = new PriceRecommender(w.shoppers(), j).recommend(draws, settings);
+    Bands mc = r.marginChange();
+    double units = 0; // the whole portfolio's units: the sum of its products' mean changes
+    for (Bands u : r.unitsChange()) {
+      units += u.mean();
     }
+    double[] change = r.priceChangePercent();
     String response = settings.response().name().toLowerCase(Locale.ROOT);
     for (int q = 0; q < r.productIds().length; q++) {
       int p = market.indexOf(r.productIds()[q]);
       rows.add(RowFactory.create(w.storeId(), w.region(), r.productIds()[q], market.owner(p),
-          r.current()[q], r.recommended()[q], 100 * (r.recommended()[q] / r.current()[q] - 1),
-          r.lower()[q], r.upper()[q], r.meanCost()[q], response, objective, r.draws(),
-          r.skippedDraws() + skipped, r.failedSolves(), mean(mc), pct.evaluate(5),
-          pct.evaluate(50), pct.evaluate(95), gain / mc.length, mean(r.revenueChange()),
-          mean(r.unitsChange()), r.evaluations()));
+          r.currentPrice()[q], r.recommendedPrice()[q], change[q], r.lower()[q], r.upper()[q],
+          r.meanCost()[q], response, objective, r.drawsUsed(), r.drawsDropped() + skipped,
+          r.rejectedCandidates(), mc.mean(), mc.q05(), mc.q50(), mc.q95(), mc.probPositive(),
+          r.revenueChange().mean(), units, r.evaluations()));
     }
     return rows;
-  }
-
-  private static double mean(double[] v) {
-    double s = 0;
-    for (double x : v) {
-      s += x;
-    }
-    return s / v.length;
   }
 }
