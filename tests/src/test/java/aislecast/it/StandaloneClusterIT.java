@@ -13,6 +13,8 @@ import java.util.ArrayList;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.regex.Matcher;
+import java.util.regex.Pattern;
 import java.util.stream.Stream;
 import org.junit.jupiter.api.AfterAll;
 import org.junit.jupiter.api.BeforeAll;
@@ -46,13 +48,21 @@ class StandaloneClusterIT {
   /** Sweeps between checkpoints; the faults are injected once the first one is complete. */
   private static final int CHECKPOINT_EVERY = 10;
   private static final Duration RUN_TIMEOUT = Duration.ofMinutes(6);
+  /**
+   * Spark SQL settings for every run, local and cluster alike: on a few hundred rows, generating
+   * and compiling code per query and adaptive re-planning cost more than they save (measured
+   * on the shared 2-core machine, one local run: validation 34 s to 20 s, whole run 55 s to
+   * 32 s). They do not change any value the job computes.
+   */
+  private static final List<String> SQL_SETTINGS = List.of(
+      "spark.sql.codegen.wholeStage=false", "spark.sql.adaptive.enabled=false");
 
   private final Path builtJar = Path.of(System.getProperty("aislecast.jar",
       "../jobs/target/aislecast.jar")).toAbsolutePath().normalize();
   /** A private copy, so a rebuild of the jar during the test cannot change what runs. */
   private Path jar;
 
-  @TempDir Path tmp;
+  @TempDir static Path tmp;
   private Path input;
   private Path out;
   private Path conf;
@@ -190,8 +200,10 @@ class StandaloneClusterIT {
       int code = jvms.await(driver, "executor-loss", RUN_TIMEOUT);
       assertEquals(0, code, Jvms.tail(jvms.logText("executor-loss")));
       // the worker saw the executor die and the master had it start another one
-      assertTrue(jvms.logText("worker").contains("Executor " + app.getFileName()
-          + "/0 finished with state FAILED"), Jvms.tail(jvms.logText("worker")));
+      String killed = app.getFileName() + "/0 finished with state";
+      assertTrue(jvms.logText("worker").lines()
+              .anyMatch(l -> l.contains(killed) && l.contains("exited with code 137")),
+          "worker log has no SIGKILLed executor 0:\n" + Jvms.tail(jvms.logText("worker")));
       assertTrue(executorLog(app, 1).contains("Finished task"),
           "the replacement executor ran no task");
     } finally {
@@ -217,8 +229,11 @@ class StandaloneClusterIT {
     resume.add("--resume");
     assertEquals(0, submitAndWait("driver-loss-resume", resume));
     String log = jvms.logText("driver-loss-resume");
-    assertTrue(log.contains("resuming after sweep "), Jvms.tail(log));
-    assertFalse(log.contains("resuming after sweep 0 "), "resumed from nothing: " + log);
+    Matcher m = Pattern.compile("resuming after sweep (\\d+) of (\\d+)").matcher(log);
+    assertTrue(m.find(), Jvms.tail(log));
+    int from = Integer.parseInt(m.group(1));
+    assertTrue(from >= CHECKPOINT_EVERY && from < Integer.parseInt(m.group(2)),
+        "resumed after sweep " + from);
     assertSameDraws("local", runId);
   }
 
@@ -243,7 +258,9 @@ class StandaloneClusterIT {
 
   /** The reference: plain {@code java -jar} with the embedded local[2] master. */
   private int runLocal(String name, List<String> appArgs) throws Exception {
-    List<String> args = new ArrayList<>(List.of("-Xmx1g", "-jar", jar.toString()));
+    List<String> args = new ArrayList<>(List.of("-Xmx1g"));
+    SQL_SETTINGS.forEach(kv -> args.add("-D" + kv));
+    args.addAll(List.of("-jar", jar.toString()));
     args.addAll(appArgs);
     args.addAll(List.of("--master", "local[2]"));
     int code = jvms.await(jvms.start(name, args), name, RUN_TIMEOUT);
@@ -261,9 +278,11 @@ class StandaloneClusterIT {
     List<String> args = jvm(List.of("-Xmx1g", "-cp", jar.toString(),
         "org.apache.spark.deploy.SparkSubmit", "--master", masterUrl, "--deploy-mode", "client",
         "--class", MAIN, "--executor-memory", "1g",
+        // local[2] uses one shuffle partition per core: the same here, for the same plans
         "--conf", "spark.sql.shuffle.partitions=2",
-        "--conf", "spark.ui.enabled=false",
-        "local://" + jar));
+        "--conf", "spark.ui.enabled=false"));
+    SQL_SETTINGS.forEach(kv -> args.addAll(List.of("--conf", kv)));
+    args.add("local://" + jar);
     args.addAll(appArgs);
     return jvms.start(name, args);
   }
@@ -276,13 +295,23 @@ class StandaloneClusterIT {
     return code;
   }
 
-  /** Waits until the run's first checkpoint is complete (its driver.bin is written last). */
+  /**
+   * Waits until the run has a complete mid-run checkpoint (driver.bin is written last; the
+   * final state goes to the staging folder instead, so one here means sweeps remain).
+   */
   private void awaitCheckpoint(Process driver, String name, String runId) throws Exception {
-    Path done = out.resolve(".work-" + runId).resolve("_checkpoint")
-        .resolve("sweep-" + CHECKPOINT_EVERY).resolve("driver.bin");
-    boolean reached = Jvms.waitFor(() -> Files.exists(done) || !driver.isAlive(), RUN_TIMEOUT);
-    assertTrue(reached && driver.isAlive() && Files.exists(done), "no checkpoint " + done
+    Path dir = out.resolve(".work-" + runId).resolve("_checkpoint");
+    boolean reached = Jvms.waitFor(() -> hasCheckpoint(dir) || !driver.isAlive(), RUN_TIMEOUT);
+    assertTrue(reached && driver.isAlive() && hasCheckpoint(dir), "no checkpoint in " + dir
         + " while the driver ran; its log:\n" + Jvms.tail(jvms.logText(name)));
+  }
+
+  private static boolean hasCheckpoint(Path dir) {
+    try (Stream<Path> s = Files.list(dir)) {
+      return s.anyMatch(p -> Files.exists(p.resolve("driver.bin")));
+    } catch (IOException e) {
+      return false; // not created yet, or replaced while listing
+    }
   }
 
   private void assertSameDraws(String expectedRun, String actualRun) {
