@@ -34,6 +34,8 @@ final class Jvms implements AutoCloseable {
   Jvms(Path logDir, Map<String, String> env) {
     this.logDir = logDir;
     this.env = env;
+    // also when the test JVM itself is stopped (Maven interrupted, fork timeout)
+    Runtime.getRuntime().addShutdownHook(new Thread(this::close, "kill-test-jvms"));
   }
 
   /** The java executable running this test, so children use the same JDK. */
