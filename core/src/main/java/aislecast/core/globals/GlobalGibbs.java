@@ -276,16 +276,9 @@ public final class GlobalGibbs {
     double[] gamma = g.gamma();
     double[] prec = new double[m * m];
     double[] lin = new double[m];
+    priceGram(s, last, m, sp2, prec);
     for (int i = 0; i < last; i++) {
-      for (int i2 = 0; i2 <= i; i2++) {
-        double v = s.ww(kz + i, kz + i2) / sp2;
-        prec[i * m + i2] = v;
-        prec[i2 * m + i] = v;
-      }
-      double xxi = s.wy(kz + i);
-      for (int b = 0; b < kz; b++) {
-        xxi -= s.ww(kz + i, b) * gamma[b];
-      }
+      double xxi = crossXi(g, s, kz + i);
       prec[i * m + last] = xxi / sp2;
       prec[last * m + i] = xxi / sp2;
       lin[i] = s.wl(kz + i) / sp2;
@@ -302,6 +295,30 @@ public final class GlobalGibbs {
       lin[i] += prior.mean() / prior.var();
     }
     return new Gaussian(prec, lin, m);
+  }
+
+  /**
+   * The product and cost-shifter block of the price equation's Gram matrix, {@code X'X /
+   * sigma_p^2} for its first {@code n} columns, into {@code prec} (m x m, row-major, modified).
+   */
+  private static void priceGram(RegressionStats s, int n, int m, double sp2, double[] prec) {
+    int kz = s.kz();
+    for (int i = 0; i < n; i++) {
+      for (int i2 = 0; i2 <= i; i2++) {
+        double v = s.ww(kz + i, kz + i2) / sp2;
+        prec[i * m + i2] = v;
+        prec[i2 * m + i] = v;
+      }
+    }
+  }
+
+  /** {@code W_a' xi = W_a'y - W_a'Z gamma} for one column a of W. */
+  private static double crossXi(Globals g, RegressionStats s, int a) {
+    double v = s.wy(a);
+    for (int b = 0; b < s.kz(); b++) {
+      v -= s.ww(a, b) * g.gamma(b);
+    }
+    return v;
   }
 
   /** Draws (pi0, pi, lambda) jointly from {@link #priceEquationConditional}. */
@@ -331,16 +348,9 @@ public final class GlobalGibbs {
     double lambda = g.lambda();
     double[] prec = new double[m * m];
     double[] lin = new double[m];
+    priceGram(s, m, m, sp2, prec);
     for (int i = 0; i < m; i++) {
-      for (int i2 = 0; i2 <= i; i2++) {
-        double v = s.ww(kz + i, kz + i2) / sp2;
-        prec[i * m + i2] = v;
-        prec[i2 * m + i] = v;
-      }
-      double xxi = s.wy(kz + i);
-      for (int b = 0; b < kz; b++) {
-        xxi -= s.ww(kz + i, b) * g.gamma(b);
-      }
+      double xxi = crossXi(g, s, kz + i);
       Normal prior = i < j ? priors.pi0() : priors.pi();
       prec[i * m + i] += 1.0 / prior.var();
       lin[i] = (s.wl(kz + i) - lambda * xxi) / sp2 + prior.mean() / prior.var();
