@@ -1,12 +1,15 @@
 package aislecast.jobs.cli;
 
+import aislecast.jobs.io.RunLog;
 import java.nio.file.Path;
 import java.security.SecureRandom;
 import java.time.ZoneOffset;
 import java.time.ZonedDateTime;
 import java.time.format.DateTimeFormatter;
 import java.util.Locale;
+import picocli.CommandLine.ITypeConverter;
 import picocli.CommandLine.Option;
+import picocli.CommandLine.TypeConversionException;
 
 /** Options every job shares (a picocli mixin). */
 public final class CommonOptions {
@@ -40,6 +43,20 @@ public final class CommonOptions {
       description = "Run seed for every random stream (default: ${DEFAULT-VALUE}).")
   long seed;
 
+  @Option(names = "--replace",
+      description = "Replace <output>/<run id>/ when it exists with other inputs, configuration"
+          + " or seed. The new run is written aside and swapped in only when complete; the old"
+          + " folder stays intact if anything fails. Without it such a rerun is refused (exit 2),"
+          + " and a rerun with the same inputs, configuration and seed does nothing.")
+  boolean replace;
+
+  @Option(names = "--log-format", paramLabel = "auto|text|kv", defaultValue = "auto",
+      converter = LogFormatConverter.class,
+      description = "Progress and status output: text (lines for people; a progress bar on a"
+          + " terminal), kv (one key=value record per line, for log collectors) or auto (text on"
+          + " a terminal, kv otherwise; the default).")
+  RunLog.Format logFormat = RunLog.Format.AUTO;
+
   private String generatedRunId;
 
   public String input() {
@@ -62,6 +79,14 @@ public final class CommonOptions {
     return seed;
   }
 
+  public boolean replace() {
+    return replace;
+  }
+
+  public RunLog.Format logFormat() {
+    return logFormat;
+  }
+
   /** The --run-id value, or one timestamp id generated once per invocation. */
   public String runId() {
     if (runId != null) {
@@ -77,5 +102,17 @@ public final class CommonOptions {
   static String timestampRunId(ZonedDateTime utc) {
     String stamp = utc.format(DateTimeFormatter.ofPattern("yyyyMMdd-HHmmss", Locale.ROOT));
     return stamp + "-" + String.format(Locale.ROOT, "%04x", new SecureRandom().nextInt(1 << 16));
+  }
+
+  /** Parses --log-format case-insensitively; picocli turns a failure into a usage error. */
+  static final class LogFormatConverter implements ITypeConverter<RunLog.Format> {
+    @Override
+    public RunLog.Format convert(String value) {
+      try {
+        return RunLog.Format.parse(value);
+      } catch (IllegalArgumentException e) {
+        throw new TypeConversionException(e.getMessage());
+      }
+    }
   }
 }

@@ -4,6 +4,7 @@ import aislecast.jobs.config.RunFailure;
 import java.io.BufferedReader;
 import java.io.BufferedWriter;
 import java.io.IOException;
+import java.io.PrintWriter;
 import java.io.UncheckedIOException;
 import java.nio.charset.StandardCharsets;
 import java.nio.file.Files;
@@ -11,6 +12,7 @@ import java.nio.file.Path;
 import java.nio.file.StandardCopyOption;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.Locale;
 import picocli.CommandLine;
 import picocli.CommandLine.Command;
 import picocli.CommandLine.Option;
@@ -46,6 +48,8 @@ public final class DemoCommand extends JobCommand {
       description = "Shopper draws per store kept in the demo's reduced input (default ${DEFAULT-VALUE}).")
   int draws;
 
+  private PrintWriter say;
+
   @Override
   protected int execute() {
     String input = common.input();
@@ -60,7 +64,7 @@ public final class DemoCommand extends JobCommand {
     Path out = Path.of(common.output()).toAbsolutePath().normalize();
     Path reduced = out.resolve(id + "-input");
     reduceInput(Path.of(input), reduced, draws);
-    out().println("demo: input " + input + " reduced to " + draws + " shopper draws per store in "
+    say().println("demo: input " + input + " reduced to " + draws + " shopper draws per store in "
         + reduced + "; configuration " + conf);
 
     String estimate = id + "-estimate";
@@ -78,21 +82,29 @@ public final class DemoCommand extends JobCommand {
     report.addAll(master());
     step("report", new ReportCommand(), report);
 
-    out().println();
-    out().println("demo: done. Outputs:");
-    out().println("  posterior        " + out.resolve(estimate) + "/posterior/");
-    out().println("  scenarios        " + out.resolve(scenarios) + "/scenarios/");
-    out().println("  elasticities     " + out.resolve(scenarios) + "/elasticities/");
-    out().println("  recommendations  " + out.resolve(recommend) + "/recommendations/");
-    out().println("  report           " + out.resolve(scenarios) + "/report/index.html");
-    out().println("The demo's chains are short (see " + conf + "): the estimates are not converged"
+    say().println();
+    say().println("demo: done. Outputs:");
+    say().println("  posterior        " + out.resolve(estimate) + "/posterior/");
+    say().println("  scenarios        " + out.resolve(scenarios) + "/scenarios/");
+    say().println("  elasticities     " + out.resolve(scenarios) + "/elasticities/");
+    say().println("  recommendations  " + out.resolve(recommend) + "/recommendations/");
+    say().println("  report           " + out.resolve(scenarios) + "/report/index.html");
+    say().println("The demo's chains are short (see " + conf + "): the estimates are not converged"
         + " and are for showing the tool only. For the full-size run use the whole sample and"
         + " the default sampler settings:");
-    out().println("  java -jar jobs/target/aislecast.jar estimate --input " + input
+    say().println("  java -jar jobs/target/aislecast.jar estimate --input " + input
         + " --output runs");
-    out().println("Results are model estimates with stated uncertainty; decisions stay with the"
+    say().println("Results are model estimates with stated uncertainty; decisions stay with the"
         + " people responsible; pricing must follow local competition law.");
     return ExitCodeMapper.OK;
+  }
+
+  /** The demo's own lines, in the --log-format form; each step logs through its own command. */
+  private PrintWriter say() {
+    if (say == null) {
+      say = log("demo").out();
+    }
+    return say;
   }
 
   private List<String> withCommon(Path input, Path conf, String runId, String... extra) {
@@ -100,6 +112,10 @@ public final class DemoCommand extends JobCommand {
         common.output(), "--conf", conf.toString(), "--run-id", runId, "--seed",
         Long.toString(common.seed())));
     args.addAll(master());
+    args.addAll(List.of("--log-format", common.logFormat().name().toLowerCase(Locale.ROOT)));
+    if (common.replace()) {
+      args.add("--replace");
+    }
     args.addAll(List.of(extra));
     return args;
   }
@@ -110,8 +126,8 @@ public final class DemoCommand extends JobCommand {
   }
 
   private void step(String name, Object command, List<String> args) {
-    out().println("demo: " + name + " ...");
-    out().flush();
+    say().println("demo: " + name + " ...");
+    say().flush();
     int code = new CommandLine(command).setOut(out()).setErr(err())
         .execute(args.toArray(new String[0]));
     if (code != ExitCodeMapper.OK) {
@@ -169,9 +185,9 @@ public final class DemoCommand extends JobCommand {
 
   /** Writes the sample through the generate command, so demo and generate cannot disagree. */
   private void generateSample() {
-    out().println("demo: no sample at " + SAMPLE_DIR + "; generating it (seed " + common.seed()
+    say().println("demo: no sample at " + SAMPLE_DIR + "; generating it (seed " + common.seed()
         + ")");
-    out().flush();
+    say().flush();
     CommandLine generate = new CommandLine(new GenerateCommand())
         .setOut(out())
         .setErr(err());

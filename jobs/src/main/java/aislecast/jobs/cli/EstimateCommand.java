@@ -23,9 +23,11 @@ import picocli.CommandLine.Option;
     },
     exitCodeListHeading = "Exit codes:%n",
     exitCodeList = {
-      "0:done, convergence limits met (or --allow-unconverged)",
+      "0:done, convergence limits met (or --allow-unconverged); also when the same run"
+          + " (inputs, configuration, seed) existed already",
       "1:unexpected failure",
-      "2:bad input or configuration",
+      "2:bad input or configuration; or the run id exists with other inputs, configuration"
+          + " or seed (see --replace)",
       "3:R-hat or bulk ESS limits not met for some global parameter (outputs are written)"
     })
 public final class EstimateCommand extends JobCommand {
@@ -59,15 +61,15 @@ public final class EstimateCommand extends JobCommand {
     RunConfig config = RunConfigLoader.load(common.conf());
     EstimateJob.Options o = new EstimateJob.Options(common.input(), common.output(),
         common.runId(), common.seed(), resume, warmStart, allowUnconverged, stopAfterSweep, -1,
-        common.conf() == null ? null : common.conf().toString());
+        common.conf() == null ? null : common.conf().toString(), common.replace());
     EstimateJob.Result r;
     try (SparkSessions.Handle spark = SparkSessions.open(common.master(), "aislecast estimate")) {
-      r = EstimateJob.run(spark.spark(), config, o, out());
+      r = EstimateJob.run(spark.spark(), config, o, log("estimate"));
     }
     if (r.status() == EstimateJob.Status.NOT_CONVERGED) {
       throw new RunFailure(RunFailure.NOT_CONVERGED, "convergence limits not met for "
           + r.failures().size() + " global parameter(s) (first: " + r.failures().get(0)
-          + "); outputs are in " + r.runDir() + " with status not_converged. Run more sweeps"
+          + "); outputs are in " + r.runDir() + ". Run more sweeps"
           + " (sampler.warmup, sampler.sampling) or pass --allow-unconverged");
     }
     return ExitCodeMapper.OK;

@@ -1,5 +1,6 @@
 package aislecast.jobs.cli;
 
+import aislecast.jobs.io.RunLog;
 import java.io.PrintWriter;
 import java.util.concurrent.Callable;
 import picocli.CommandLine;
@@ -36,6 +37,11 @@ abstract class JobCommand implements Callable<Integer> {
 
   protected PrintWriter err() {
     return spec.commandLine().getErr();
+  }
+
+  /** The job's log on standard output, in the --log-format form. */
+  protected RunLog log(String job) {
+    return RunLog.create(job, common.logFormat(), out());
   }
 
   protected CommandLine.ParameterException usageError(String message) {

@@ -23,7 +23,11 @@ import picocli.CommandLine.Option;
           + " not at all."
     },
     exitCodeListHeading = "Exit codes:%n",
-    exitCodeList = {"0:done", "1:unexpected failure", "2:bad input, posterior or option"})
+    exitCodeList = {
+      "0:done (or the same run existed already: nothing to do)",
+      "1:unexpected failure",
+      "2:bad input, posterior or option; or the run id exists with other inputs (see --replace)"
+    })
 public final class RecommendCommand extends JobCommand {
 
   @Option(names = "--posterior", paramLabel = "RUNDIR", required = true,
@@ -85,9 +89,9 @@ public final class RecommendCommand extends JobCommand {
     RunConfig config = RunConfigLoader.load(common.conf());
     RecommendJob.Options o = new RecommendJob.Options(common.input(), common.output(),
         common.runId(), posterior, baseWeeks, draws, portfolio, maxMove, quantile, r,
-        ownCostColumn);
+        ownCostColumn, common.replace());
     try (SparkSessions.Handle spark = SparkSessions.open(common.master(), "aislecast recommend")) {
-      RecommendJob.run(spark.spark(), config, o, out());
+      RecommendJob.run(spark.spark(), config, o, log("recommend"));
     }
     return ExitCodeMapper.OK;
   }

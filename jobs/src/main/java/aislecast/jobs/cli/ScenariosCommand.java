@@ -26,9 +26,10 @@ import picocli.CommandLine.Option;
     },
     exitCodeListHeading = "Exit codes:%n",
     exitCodeList = {
-      "0:done",
+      "0:done (or the same run existed already: nothing to do)",
       "1:unexpected failure",
-      "2:bad input, scenario file, posterior or option"
+      "2:bad input, scenario file, posterior or option; or the run id exists with other"
+          + " inputs (see --replace)"
     })
 public final class ScenariosCommand extends JobCommand {
 
@@ -64,9 +65,9 @@ public final class ScenariosCommand extends JobCommand {
           files.scenarios(), files.sources());
     }
     ScenariosJob.Options o = new ScenariosJob.Options(common.input(), common.output(),
-        common.runId(), posterior, files, !skipElasticities);
+        common.runId(), posterior, files, !skipElasticities, common.replace());
     try (SparkSessions.Handle spark = SparkSessions.open(common.master(), "aislecast scenarios")) {
-      ScenariosJob.run(spark.spark(), config, o, out());
+      ScenariosJob.run(spark.spark(), config, o, log("scenarios"));
     }
     return ExitCodeMapper.OK;
   }

@@ -13,9 +13,14 @@ import aislecast.jobs.config.RunConfig;
 import aislecast.jobs.config.RunConfigLoader;
 import aislecast.jobs.config.RunFailure;
 import aislecast.jobs.config.SamplerConfig;
+import aislecast.jobs.io.InputFingerprint;
 import aislecast.jobs.io.RunDirectory;
+import aislecast.jobs.io.RunIdentity;
+import aislecast.jobs.io.RunLog;
 import aislecast.jobs.validate.InputValidator;
 import aislecast.jobs.validate.ValidatedInput;
+import com.fasterxml.jackson.databind.JsonNode;
+import java.io.IOException;
 import java.io.PrintWriter;
 import java.io.Serializable;
 import java.util.ArrayList;
@@ -25,6 +30,7 @@ import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Locale;
 import java.util.Map;
+import org.apache.hadoop.fs.FileSystem;
 import org.apache.hadoop.fs.Path;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
@@ -52,45 +58,58 @@ public final class EstimateJob {
    */
   public record Options(String input, String outputRoot, String runId, long seed, boolean resume,
       String warmStart, boolean allowUnconverged, int stopAtSweep, int failAtSweep,
-      String confSource) {
+      String confSource, boolean replace) {
     public Options {
       if (input == null || outputRoot == null || runId == null) {
         throw new IllegalArgumentException("input, output and run id must be set");
       }
     }
 
+    /** Without --replace. */
+    public Options(String input, String outputRoot, String runId, long seed, boolean resume,
+        String warmStart, boolean allowUnconverged, int stopAtSweep, int failAtSweep,
+        String confSource) {
+      this(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged, stopAtSweep,
+          failAtSweep, confSource, false);
+    }
+
     public static Options of(String input, String outputRoot, String runId, long seed) {
-      return new Options(input, outputRoot, runId, seed, false, null, false, -1, -1, null);
+      return new Options(input, outputRoot, runId, seed, false, null, false, -1, -1, null, false);
     }
 
     public Options withResume(boolean r) {
       return new Options(input, outputRoot, runId, seed, r, warmStart, allowUnconverged,
-          stopAtSweep, failAtSweep, confSource);
+          stopAtSweep, failAtSweep, confSource, replace);
     }
 
     public Options withStopAtSweep(int k) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged, k,
-          failAtSweep, confSource);
+          failAtSweep, confSource, replace);
     }
 
     public Options withFailAtSweep(int k) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
-          stopAtSweep, k, confSource);
+          stopAtSweep, k, confSource, replace);
     }
 
     public Options withWarmStart(String runDir) {
       return new Options(input, outputRoot, runId, seed, resume, runDir, allowUnconverged,
-          stopAtSweep, failAtSweep, confSource);
+          stopAtSweep, failAtSweep, confSource, replace);
     }
 
     public Options withAllowUnconverged(boolean a) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, a, stopAtSweep,
-          failAtSweep, confSource);
+          failAtSweep, confSource, replace);
     }
 
     public Options withConfSource(String s) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
-          stopAtSweep, failAtSweep, s);
+          stopAtSweep, failAtSweep, s, replace);
+    }
+
+    public Options withReplace(boolean r) {
+      return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
+          stopAtSweep, failAtSweep, confSource, r);
     }
   }
 
@@ -135,31 +154,49 @@ public final class EstimateJob {
    * and the caller decides the exit code; bad input and configuration throw {@link RunFailure}.
    */
   public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
+    return run(spark, config, o, RunLog.plain("estimate", out));
+  }
+
+  /**
+   * As {@link #run(SparkSession, RunConfig, Options, PrintWriter)}, logging to {@code log}. When
+   * the run folder exists with the same input files, configuration, seed (and warm-start run),
+   * nothing is computed: the result carries the stored status and convergence failures only.
+   */
+  public static Result run(SparkSession spark, RunConfig config, Options o, RunLog log) {
+    PrintWriter out = log.out();
     JavaSparkContext jsc = JavaSparkContext.fromSparkContext(spark.sparkContext());
     SamplerConfig sc = config.sampler();
     Map<String, Double> timings = new LinkedHashMap<>();
     long tStart = System.nanoTime();
 
-    // 1. Where the stopped state lives, and whether this call may use it.
+    // 1. The run folder: nothing to do when this very run exists; else a staging folder.
     String workDir = new Path(new Path(o.outputRoot()), ".work-" + o.runId()).toString();
     StateCheckpoints work = new StateCheckpoints(jsc, workDir + "/" + CHECKPOINT_DIR);
-    if (o.resume() && work.latest().isEmpty()) {
-      throw new RunFailure(RunFailure.BAD_INPUT, "nothing to resume: run '" + o.runId()
-          + "' has no checkpoint in " + work.location());
+    RunIdentity identity = identity(spark, config, o);
+    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId(), identity,
+        o.replace());
+    run.notes().forEach(n -> log.info("repair", "estimate: " + n));
+    if (run.identicalExists()) {
+      return existing(run, o, work, log);
     }
-    if (!o.resume() && work.exists()) {
-      throw new RunFailure(RunFailure.BAD_INPUT, "run '" + o.runId() + "' was stopped before and"
-          + " has checkpoints in " + work.location() + "; continue it with --resume, or delete"
-          + " that folder to start over");
-    }
-    if (o.resume() && o.warmStart() != null) {
-      throw new RunFailure(RunFailure.BAD_INPUT, "--resume and --warm-start exclude each other");
-    }
-
-    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId());
     ValidatedInput validated = null;
     SweepLoop loop = null;
     try {
+      // Where the stopped state lives, and whether this call may use it.
+      if (o.resume() && work.latest().isEmpty()) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "nothing to resume: run '" + o.runId()
+            + "' has no checkpoint in " + work.location());
+      }
+      if (!o.resume() && work.exists()) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "run '" + o.runId() + "' was stopped before"
+            + " and has checkpoints in " + work.location() + "; continue it with --resume, or"
+            + " delete that folder to start over");
+      }
+      if (o.resume() && o.warmStart() != null) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "--resume and --warm-start exclude each"
+            + " other");
+      }
+
       // 2. Read and validate (rejects go to the run folder).
       long t = System.nanoTime();
       validated = InputValidator.run(spark, config, o.input(), run.staging());
@@ -171,7 +208,7 @@ public final class EstimateJob {
       }
       if (validated.summary().rejectShare() > maxShare) {
         // publish the rejects so the user can see them, then stop with exit 2
-        Manifest.writeRejected(run.staging(), spark, o, config, validated);
+        Manifest.writeRejected(run.staging(), spark, o, identity, validated);
         run.commit();
         validated.requireRejectShareAtMost(maxShare,
             run.target() + "/" + InputValidator.REJECTS_DIR);
@@ -200,7 +237,7 @@ public final class EstimateJob {
       SweepLoop.Settings loopSettings = new SweepLoop.Settings(set, priors, partitions,
           sc.sumGroup(), sc.checkpointEvery(), sc.progressEvery(), o.stopAtSweep(),
           o.failAtSweep());
-      loop = new SweepLoop(jsc, problem, loopSettings, work, out);
+      loop = new SweepLoop(jsc, problem, loopSettings, work, log);
       if (o.resume()) {
         Path latest = work.latest().orElseThrow();
         ChainRecord saved = work.readRecord(latest);
@@ -267,9 +304,12 @@ public final class EstimateJob {
       new StateCheckpoints(jsc, staging + "/" + CHECKPOINT_DIR).save(loop.state(), rec);
       timings.put("write", secondsSince(t));
       timings.put("total", secondsSince(tStart));
-      Manifest.write(staging, spark, o, config, set, problem, rec, summaries, names, failures,
-          status, timings, validated);
+      Manifest.write(staging, spark, o, config, identity, set, problem, rec, summaries, names,
+          failures, status, timings, validated);
       run.commit();
+      log.info("published", "estimate: published " + run.target() + (o.replace()
+          ? " (replacing the earlier run of this id)" : ""), "run_dir", run.target(), "status",
+          status.label, "replaced", o.replace());
       work.deleteWithParent();
 
       Result result = new Result(status, run.target(), names, rec.kept, summaries, failures,
@@ -293,6 +333,69 @@ public final class EstimateJob {
         validated.close();
       }
     }
+  }
+
+  /**
+   * What makes a rerun of this run id the same run: the input tables' files, the effective
+   * configuration, the seed, and the warm-start run's run.json when there is one.
+   * {@code --allow-unconverged} is left out: it changes the exit code, not the outputs.
+   */
+  static RunIdentity identity(SparkSession spark, RunConfig config, Options o) {
+    RunIdentity id = RunIdentity.of("estimate", config)
+        .part("inputs", "input files", InputFingerprint.ofInput(spark, config, o.input()))
+        .seed(o.seed());
+    if (o.warmStart() != null) {
+      Path json = new Path(o.warmStart(), RUN_JSON);
+      List<InputFingerprint.FileDigest> files = new ArrayList<>();
+      try {
+        FileSystem fs = json.getFileSystem(spark.sparkContext().hadoopConfiguration());
+        if (fs.exists(json)) {
+          files.add(InputFingerprint.ofFile(fs, json, RUN_JSON));
+        }
+      } catch (IOException e) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "--warm-start " + o.warmStart() + ": cannot"
+            + " read " + RUN_JSON + ": " + e.getMessage(), e);
+      }
+      id.part("warm_start_run", "warm-start run", files);
+    }
+    return id;
+  }
+
+  /**
+   * The result of an identical run that exists already. Its exit status follows the stored
+   * convergence verdict under this call's {@code --allow-unconverged}; a stale work folder (a
+   * driver that died after publishing) is removed.
+   */
+  private static Result existing(RunDirectory run, Options o, StateCheckpoints work,
+      RunLog log) {
+    JsonNode m = run.existing();
+    String label = m.path("status").asText();
+    if (work.exists()) {
+      work.deleteWithParent();
+      log.info("repair", "estimate: removed stale checkpoints of the published run from "
+          + work.location());
+    }
+    log.info("run_exists", "estimate: run " + run.target() + " already exists with the same"
+        + " input files, configuration and seed (status " + label + "); nothing to do",
+        "run_dir", run.target(), "status", label);
+    if (Manifest.BAD_INPUT.equals(label)) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "that run stopped for too many rejected input"
+          + " rows; see " + run.target() + "/" + InputValidator.REJECTS_DIR);
+    }
+    List<String> failures = new ArrayList<>();
+    m.path("convergence").path("failures").forEach(f -> failures.add(f.asText()));
+    Status status;
+    if (Status.CONVERGED.label.equals(label)) {
+      status = Status.CONVERGED;
+    } else if (Status.NOT_CONVERGED.label.equals(label)
+        || Status.UNCONVERGED_ALLOWED.label.equals(label)) {
+      status = o.allowUnconverged() ? Status.UNCONVERGED_ALLOWED : Status.NOT_CONVERGED;
+    } else {
+      throw new RunFailure(RunFailure.OTHER, run.target() + "/" + RUN_JSON + " has an unknown"
+          + " status '" + label + "'");
+    }
+    return new Result(status, run.target(), null, null, null, failures,
+        m.path("sampler").path("sweeps_done").asInt(), 0, 0, 0, 0, null);
   }
 
   /**

@@ -3,39 +3,32 @@ package aislecast.jobs.estimate;
 import aislecast.core.diag.ParameterSummary;
 import aislecast.core.estimate.SamplerSettings;
 import aislecast.jobs.config.RunConfig;
-import aislecast.jobs.config.RunConfigLoader;
-import aislecast.jobs.config.RunFailure;
+import aislecast.jobs.io.RunIdentity;
+import aislecast.jobs.io.RunJson;
 import aislecast.jobs.validate.ValidatedInput;
-import com.fasterxml.jackson.databind.ObjectMapper;
-import com.fasterxml.jackson.databind.SerializationFeature;
-import java.io.IOException;
-import java.io.OutputStream;
-import java.time.Instant;
 import java.util.ArrayList;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
-import org.apache.hadoop.fs.FileSystem;
-import org.apache.hadoop.fs.Path;
 import org.apache.spark.sql.SparkSession;
 
 /**
- * {@code run.json}, the run's manifest: status, configuration, seed, versions, the problem's
- * sizes and fingerprint, timings per phase, sweeps, sampler statistics (local HMC acceptance,
- * ridge-move acceptance, divergences) and the convergence verdict. Keys are lower_snake_case.
+ * {@code run.json} of an estimation run: the shared head ({@link RunJson#header}: status,
+ * configuration, seed, versions, input fingerprints), then the problem's sizes and fingerprint,
+ * timings per phase, sweeps, sampler statistics (local HMC acceptance, ridge-move acceptance,
+ * divergences) and the convergence verdict. Keys are lower_snake_case.
  */
 final class Manifest {
-  static final String AISLECAST_VERSION = "0.1.0";
-  private static final ObjectMapper JSON =
-      new ObjectMapper().enable(SerializationFeature.INDENT_OUTPUT);
+  /** Status of a run stopped for too many rejected input rows (its rejects are published). */
+  static final String BAD_INPUT = "bad_input";
 
   private Manifest() {}
 
   static void write(String runDir, SparkSession spark, EstimateJob.Options o, RunConfig config,
-      SamplerSettings set, EstimationProblem problem, ChainRecord rec,
+      RunIdentity id, SamplerSettings set, EstimationProblem problem, ChainRecord rec,
       ParameterSummary[] summaries, String[] names, List<String> failures,
       EstimateJob.Status status, Map<String, Double> timings, ValidatedInput validated) {
-    Map<String, Object> m = header(spark, o, config, status.label);
+    Map<String, Object> m = header(spark, o, id, status.label);
     Map<String, Object> in = new LinkedHashMap<>();
     in.put("input_rows", validated.summary().inputRows());
     in.put("rejected_rows", validated.summary().rejectedRows());
@@ -97,60 +90,33 @@ final class Manifest {
     t.put("sweep_stage_seconds", rec.aggregateSeconds);
     t.put("sweep_driver_seconds", rec.driverSeconds);
     m.put("timings", t);
-    writeJson(spark, runDir, m);
+    RunJson.write(spark, runDir, m);
   }
 
   /** The manifest of a run stopped for too many rejected input rows. */
   static void writeRejected(String runDir, SparkSession spark, EstimateJob.Options o,
-      RunConfig config, ValidatedInput validated) {
-    Map<String, Object> m = header(spark, o, config, "bad_input");
+      RunIdentity id, ValidatedInput validated) {
+    Map<String, Object> m = header(spark, o, id, BAD_INPUT);
     Map<String, Object> in = new LinkedHashMap<>();
     in.put("input_rows", validated.summary().inputRows());
     in.put("rejected_rows", validated.summary().rejectedRows());
     in.put("reject_share", validated.summary().rejectShare());
     m.put("data", in);
-    writeJson(spark, runDir, m);
+    RunJson.write(spark, runDir, m);
   }
 
+  /** The shared head ({@link RunJson#header}) plus estimate's own run facts. */
   private static Map<String, Object> header(SparkSession spark, EstimateJob.Options o,
-      RunConfig config, String status) {
-    Map<String, Object> m = new LinkedHashMap<>();
-    m.put("command", "estimate");
-    m.put("run_id", o.runId());
-    m.put("status", status);
-    m.put("written_at", Instant.now().toString());
+      RunIdentity id, String status) {
+    Map<String, Object> m = RunJson.header(spark, o.runId(), status, id);
     m.put("input", o.input());
     m.put("configuration_file", o.confSource());
-    m.put("seed", o.seed());
     m.put("resumed", o.resume());
-    Map<String, Object> v = new LinkedHashMap<>();
-    v.put("aislecast", AISLECAST_VERSION);
-    v.put("spark", spark.version());
-    v.put("java", System.getProperty("java.version"));
-    v.put("spark_master", spark.sparkContext().master());
-    m.put("versions", v);
-    try {
-      m.put("configuration", JSON.readTree(RunConfigLoader.toJson(config)));
-    } catch (IOException e) {
-      throw new IllegalStateException("configuration JSON does not parse back", e);
-    }
     return m;
   }
 
   private static Object finite(double v) {
     return Double.isFinite(v) ? v : null;
-  }
-
-  private static void writeJson(SparkSession spark, String runDir, Map<String, Object> m) {
-    Path p = new Path(runDir, EstimateJob.RUN_JSON);
-    try {
-      FileSystem fs = p.getFileSystem(spark.sparkContext().hadoopConfiguration());
-      try (OutputStream os = fs.create(p, false)) {
-        JSON.writeValue(os, m);
-      }
-    } catch (IOException e) {
-      throw new RunFailure(RunFailure.OTHER, "cannot write " + p + ": " + e.getMessage(), e);
-    }
   }
 
   static List<String> copy(List<String> l) {

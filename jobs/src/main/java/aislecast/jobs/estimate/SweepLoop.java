@@ -13,10 +13,9 @@ import aislecast.core.globals.Priors;
 import aislecast.core.mcmc.StoreSampler;
 import aislecast.core.model.LocalParams;
 import aislecast.core.model.StoreData;
-import java.io.PrintWriter;
+import aislecast.jobs.io.RunLog;
 import java.util.ArrayList;
 import java.util.List;
-import java.util.Locale;
 import java.util.Map;
 import org.apache.spark.TaskContext;
 import org.apache.spark.api.java.JavaRDD;
@@ -56,7 +55,7 @@ final class SweepLoop {
   private final EstimationProblem problem;
   private final Settings cfg;
   private final StateCheckpoints checkpoints;
-  private final PrintWriter out;
+  private final RunLog log;
   private final Dims dims;
   private final String[] names;
   private final List<Broadcast<?>> liveBroadcasts = new ArrayList<>();
@@ -69,12 +68,12 @@ final class SweepLoop {
   private int lastCheckpoint = -1;
 
   SweepLoop(JavaSparkContext jsc, EstimationProblem problem, Settings cfg,
-      StateCheckpoints checkpoints, PrintWriter out) {
+      StateCheckpoints checkpoints, RunLog log) {
     this.jsc = jsc;
     this.problem = problem;
     this.cfg = cfg;
     this.checkpoints = checkpoints;
-    this.out = out;
+    this.log = log;
     this.dims = problem.dims();
     this.names = Globals.parameterNames(dims);
   }
@@ -249,19 +248,12 @@ final class SweepLoop {
     int doneHere = done - sweepsAtStart;
     double eta = doneHere > 0 ? elapsed / doneHere * (total - done) : Double.NaN;
     String phase = done <= cfg.sampler().warmupSweeps() ? "warmup" : "sampling";
-    out.printf(Locale.ROOT, "  sweep %d of %d (%s)  elapsed %s  eta %s  worst R-hat %s%n",
-        done, total, phase, clock(elapsed), clock(eta),
-        Double.isNaN(worstRhat) ? "- (no kept draws yet)"
-            : String.format(Locale.ROOT, "%.3f (%s)", worstRhat, worstParameter));
-    out.flush();
+    log.progress(new RunLog.Progress("sweep", done, total, phase, elapsed, eta, worstRhat,
+        worstParameter));
   }
 
   static String clock(double seconds) {
-    if (!Double.isFinite(seconds)) {
-      return "-";
-    }
-    long s = Math.round(seconds);
-    return String.format(Locale.ROOT, "%d:%02d:%02d", s / 3600, (s / 60) % 60, s % 60);
+    return RunLog.clock(seconds);
   }
 
   /** The task of one sweep: copy each store's block and advance it. */

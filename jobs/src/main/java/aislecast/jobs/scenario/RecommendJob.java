@@ -14,8 +14,11 @@ import aislecast.core.scenario.ScenarioEvaluator;
 import aislecast.jobs.config.RunConfig;
 import aislecast.jobs.config.RunFailure;
 import aislecast.jobs.io.RunDirectory;
+import aislecast.jobs.io.RunIdentity;
+import aislecast.jobs.io.RunLog;
 import aislecast.jobs.validate.InputValidator;
 import aislecast.jobs.validate.ValidatedInput;
+import com.fasterxml.jackson.databind.JsonNode;
 import java.io.PrintWriter;
 import java.util.ArrayList;
 import java.util.LinkedHashMap;
@@ -46,10 +49,19 @@ public final class RecommendJob {
   /**
    * @param quantile NaN to maximise the mean margin change, else the quantile level
    * @param draws posterior draws to use (0 = all)
+   * @param replace replace an existing run folder of this id that differs (see RunDirectory)
    */
   public record Options(String input, String outputRoot, String runId, String posterior,
       int baseWeeks, int draws, List<String> portfolio, double maxMove, double quantile,
-      Response response, String ownCostColumn) {}
+      Response response, String ownCostColumn, boolean replace) {
+    /** Without --replace. */
+    public Options(String input, String outputRoot, String runId, String posterior,
+        int baseWeeks, int draws, List<String> portfolio, double maxMove, double quantile,
+        Response response, String ownCostColumn) {
+      this(input, outputRoot, runId, posterior, baseWeeks, draws, portfolio, maxMove, quantile,
+          response, ownCostColumn, false);
+    }
+  }
 
   private static StructField f(String name, DataType type, boolean nullable) {
     return DataTypes.createStructField(name, type, nullable);
@@ -89,6 +101,15 @@ public final class RecommendJob {
       Map<String, Double> seconds) {}
 
   public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
+    return run(spark, config, o, RunLog.plain("recommend", out));
+  }
+
+  /**
+   * Runs the job, or does nothing when run {@code o.runId()} exists with the same input files,
+   * posterior run, options and configuration (then the result is read from its run.json).
+   */
+  public static Result run(SparkSession spark, RunConfig config, Options o, RunLog log) {
+    PrintWriter out = log.out();
     Map<String, Double> seconds = new LinkedHashMap<>();
     long t0 = System.nanoTime();
     try {
@@ -96,7 +117,26 @@ public final class RecommendJob {
     } catch (IllegalArgumentException e) {
       throw new RunFailure(RunFailure.BAD_INPUT, "recommend options: " + e.getMessage());
     }
-    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId());
+    String objective = Double.isNaN(o.quantile()) ? "mean"
+        : String.format(Locale.ROOT, "q%02d", Math.round(100 * o.quantile()));
+    RunIdentity id = RunManifest.identity(spark, "recommend", config, o.input(), o.posterior())
+        .option("portfolio", o.portfolio())
+        .option("base_weeks", o.baseWeeks())
+        .option("draws", o.draws())
+        .option("max_move", o.maxMove())
+        .option("objective", objective)
+        .option("response", o.response().name().toLowerCase(Locale.ROOT))
+        .option("own_cost_column", o.ownCostColumn());
+    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId(), id, o.replace());
+    run.notes().forEach(n -> log.info("repair", "recommend: " + n));
+    if (run.identicalExists()) {
+      JsonNode m = run.existing();
+      log.info("run_exists", "recommend: run " + run.target() + " already exists with the same"
+          + " input files, posterior run, options and configuration; nothing to do",
+          "run_dir", run.target());
+      return new Result(run.target(), m.path("stores").asInt(), m.path("draws").asInt(),
+          m.path("rows").asLong(), Map.of());
+    }
     try {
       String dir = run.staging();
       PosteriorRun posterior = PosteriorRun.open(spark, o.posterior());
@@ -118,8 +158,6 @@ public final class RecommendJob {
         }
       }
       PosteriorRun.Selection sel = posterior.select(spark, o.draws());
-      String objective = Double.isNaN(o.quantile()) ? "mean"
-          : String.format(Locale.ROOT, "q%02d", Math.round(100 * o.quantile()));
       out.printf(Locale.ROOT, "recommend: %d stores x %d draws (of %d), max move %.1f%%,"
           + " objective %s, response %s%n", prep.stores().size(), sel.size(), sel.available(),
           100 * o.maxMove(), objective, o.response().name().toLowerCase(Locale.ROOT));
@@ -139,7 +177,7 @@ public final class RecommendJob {
       long count = spark.read().parquet(dir + "/" + RECOMMENDATIONS).count();
       seconds.put("optimise", secondsSince(t1));
       seconds.put("total", secondsSince(t0));
-      Map<String, Object> m = RunManifest.header(spark, "recommend", o.runId(), o.input(),
+      Map<String, Object> m = RunManifest.header(spark, id, o.runId(), o.input(),
           o.posterior(), posterior);
       m.put("portfolio", o.portfolio());
       m.put("base_weeks", o.baseWeeks());
@@ -155,7 +193,8 @@ public final class RecommendJob {
       m.put("timings_seconds", seconds);
       RunManifest.write(spark, dir, m);
       run.commit();
-      out.println("Outputs in " + run.target() + ":");
+      log.info("published", "Outputs in " + run.target() + ":", "run_dir", run.target(),
+          "replaced", o.replace());
       out.println("  " + RECOMMENDATIONS);
       out.println("  validation/rejects");
       out.println("  " + RunManifest.RUN_JSON);

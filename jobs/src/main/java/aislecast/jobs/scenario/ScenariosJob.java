@@ -10,9 +10,13 @@ import aislecast.core.scenario.ScenarioEvaluator;
 import aislecast.core.scenario.ScenarioOutcome;
 import aislecast.core.scenario.ScenarioPlan;
 import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.io.InputFingerprint;
 import aislecast.jobs.io.RunDirectory;
+import aislecast.jobs.io.RunIdentity;
+import aislecast.jobs.io.RunLog;
 import aislecast.jobs.validate.InputValidator;
 import aislecast.jobs.validate.ValidatedInput;
+import com.fasterxml.jackson.databind.JsonNode;
 import java.io.PrintWriter;
 import java.util.ArrayList;
 import java.util.Iterator;
@@ -47,18 +51,50 @@ public final class ScenariosJob {
    * @param posterior estimation run folder
    * @param scenarios the merged scenario files
    * @param elasticities whether to write {@code elasticities/}
+   * @param replace replace an existing run folder of this id that differs (see RunDirectory)
    */
   public record Options(String input, String outputRoot, String runId, String posterior,
-      ScenarioFile.Resolved scenarios, boolean elasticities) {}
+      ScenarioFile.Resolved scenarios, boolean elasticities, boolean replace) {
+    /** Without --replace. */
+    public Options(String input, String outputRoot, String runId, String posterior,
+        ScenarioFile.Resolved scenarios, boolean elasticities) {
+      this(input, outputRoot, runId, posterior, scenarios, elasticities, false);
+    }
+  }
 
   /** What the run did, for the command's report and the benchmark. */
   public record Result(String runDir, int stores, int draws, int scenarios, long detailRows,
       Map<String, Double> seconds, List<String> notes) {}
 
   public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
+    return run(spark, config, o, RunLog.plain("scenarios", out));
+  }
+
+  /**
+   * Runs the job, or does nothing when run {@code o.runId()} exists with the same input files,
+   * scenario files, posterior run and configuration (then the result is read from its run.json).
+   */
+  public static Result run(SparkSession spark, RunConfig config, Options o, RunLog log) {
+    PrintWriter out = log.out();
     Map<String, Double> seconds = new LinkedHashMap<>();
     long t0 = System.nanoTime();
-    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId());
+    RunIdentity id = RunManifest.identity(spark, "scenarios", config, o.input(), o.posterior())
+        .part("scenario_files", "scenario files",
+            InputFingerprint.ofLocalFiles(o.scenarios().sources()))
+        .option("draws", o.scenarios().draws())
+        .option("elasticities", o.elasticities());
+    RunDirectory run = RunDirectory.create(spark, o.outputRoot(), o.runId(), id, o.replace());
+    run.notes().forEach(n -> log.info("repair", "scenarios: " + n));
+    if (run.identicalExists()) {
+      JsonNode m = run.existing();
+      log.info("run_exists", "scenarios: run " + run.target() + " already exists with the same"
+          + " input files, scenario files, posterior run and configuration; nothing to do",
+          "run_dir", run.target());
+      List<String> notes = new ArrayList<>();
+      m.path("notes").forEach(n -> notes.add(n.asText()));
+      return new Result(run.target(), m.path("stores").asInt(), m.path("draws").asInt(),
+          m.path("scenarios").size(), m.path("product_detail_rows").asLong(), Map.of(), notes);
+    }
     try {
       String dir = run.staging();
       PosteriorRun posterior = PosteriorRun.open(spark, o.posterior());
@@ -127,7 +163,7 @@ public final class ScenariosJob {
       seconds.put("summaries", secondsSince(t3));
       seconds.put("total", secondsSince(t0));
 
-      Map<String, Object> m = RunManifest.header(spark, "scenarios", o.runId(), o.input(),
+      Map<String, Object> m = RunManifest.header(spark, id, o.runId(), o.input(),
           o.posterior(), posterior);
       m.put("scenario_files", o.scenarios().sources());
       m.put("scenarios", resolved.scenarioNames());
@@ -141,7 +177,8 @@ public final class ScenariosJob {
       m.put("timings_seconds", seconds);
       RunManifest.write(spark, dir, m);
       run.commit();
-      out.println("Outputs in " + run.target() + ":");
+      log.info("published", "Outputs in " + run.target() + ":", "run_dir", run.target(),
+          "replaced", o.replace());
       for (String t : new String[] {ScenarioTables.PRODUCT_DETAIL, ScenarioTables.STORE_TOTALS,
           ScenarioTables.STORE_SUMMARY, ScenarioTables.REGION_SUMMARY, ScenarioTables.STORE_CHECKS,
           o.elasticities() ? ScenarioTables.ELASTICITIES : null, "validation/rejects",

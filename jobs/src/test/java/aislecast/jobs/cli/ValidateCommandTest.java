@@ -69,10 +69,21 @@ class ValidateCommandTest {
     assertTrue(out.toString().contains(output.resolve("r1/validation/rejects").toString()),
         "prints where the rejects are");
 
-    // The same run id again is refused: a published run is never overwritten.
+    assertTrue(Files.isRegularFile(output.resolve("r1/run.json")));
+
+    // The same run id and input again does nothing; other input is refused without --replace:
+    // a published run is never overwritten by accident.
+    assertEquals(0, run("validate", "--input", input.toString(), "--output", output.toString(),
+        "--run-id", "r1"), err.toString());
+    assertTrue(out.toString().contains("already exists with the same input files"),
+        out.toString());
+    Files.writeString(input.resolve("stores.csv"), "\n", java.nio.file.StandardOpenOption.APPEND);
     assertEquals(2, run("validate", "--input", input.toString(), "--output", output.toString(),
         "--run-id", "r1"));
-    assertTrue(err.toString().contains("already exists"), err.toString());
+    assertTrue(err.toString().contains("already exists and is not this run: input files differ"
+        + " (changed stores.csv)"), err.toString());
+    assertTrue(err.toString().contains("--replace"), err.toString());
+    assertEquals(List.of("r1"), entries(output), "nothing staged or moved aside");
   }
 
   @Test

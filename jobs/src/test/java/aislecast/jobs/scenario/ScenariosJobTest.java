@@ -11,7 +11,11 @@ import aislecast.core.sim.SimWriter;
 import aislecast.core.sim.SimulatedData;
 import aislecast.jobs.cli.Main;
 import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.io.FolderSnapshot;
+import aislecast.jobs.io.Sha256Sum;
 import aislecast.jobs.spark.SparkSessions;
+import com.fasterxml.jackson.databind.JsonNode;
+import com.fasterxml.jackson.databind.ObjectMapper;
 import java.io.PrintWriter;
 import java.io.StringWriter;
 import java.nio.file.Files;
@@ -347,6 +351,54 @@ class ScenariosJobTest {
       assertEquals(rec.agg(org.apache.spark.sql.functions.sum("recommended_price")).first()
           .getDouble(0), rs.getDouble(2), 1e-9);
     }
+  }
+
+  /**
+   * A rerun of s1 with the same inputs does nothing; run.json fingerprints every file read
+   * (input tables, scenario file, the posterior's run.json) as sha256sum computes it; a changed
+   * scenario file is refused, naming it, and leaves the folder untouched.
+   */
+  @Test
+  void rerunsOfTheSameRunDoNothingAndChangedScenarioFilesAreRefused() throws Exception {
+    Path s1 = tmp.resolve("out/s1");
+    Map<String, String> before = FolderSnapshot.of(s1);
+    JsonNode fp = new ObjectMapper().readTree(s1.resolve("run.json").toFile())
+        .path("fingerprints");
+    JsonNode scen = fp.path("scenario_files").path("files").get(0);
+    assertEquals("test.yaml", scen.path("path").asText());
+    assertEquals(Sha256Sum.of(scenarioFile), scen.path("sha256").asText());
+    assertEquals(Sha256Sum.of(posterior.resolve("run.json")),
+        fp.path("posterior_run").path("files").get(0).path("sha256").asText());
+    int inputs = 0;
+    for (JsonNode f : fp.path("inputs").path("files")) {
+      assertEquals(Sha256Sum.of(input.resolve(f.path("path").asText())),
+          f.path("sha256").asText());
+      inputs++;
+    }
+    assertEquals(4, inputs, "sales, products, stores, shopper_draws");
+
+    StringWriter text = new StringWriter();
+    StringWriter err = new StringWriter();
+    String[] same = {"scenarios", "--posterior", posterior.toString(), "--scenario",
+        scenarioFile.toString(), "--input", input.toString(), "--output",
+        tmp.resolve("out").toString(), "--run-id", "s1", "--master", "local[2]",
+        "--log-format", "text"};
+    assertEquals(0, Main.commandLine().setOut(new PrintWriter(text)).setErr(
+        new PrintWriter(err)).execute(same), err.toString());
+    assertTrue(text.toString().contains("already exists with the same input files, scenario"
+        + " files, posterior run and configuration; nothing to do"), text.toString());
+    assertEquals(before, FolderSnapshot.of(s1));
+
+    Path other = tmp.resolve("other/test.yaml");
+    Files.createDirectories(other.getParent());
+    Files.writeString(other, Files.readString(scenarioFile).replace("percent: 3", "percent: 4"));
+    String[] changed = same.clone();
+    changed[4] = other.toString();
+    assertEquals(2, Main.commandLine().setOut(new PrintWriter(text)).setErr(
+        new PrintWriter(err)).execute(changed));
+    assertTrue(err.toString().contains("scenario files differ (changed test.yaml)"),
+        err.toString());
+    assertEquals(before, FolderSnapshot.of(s1));
   }
 
   /** A file error stops the run before Spark work; the resolver's checks are unit-tested. */
