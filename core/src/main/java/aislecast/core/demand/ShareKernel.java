@@ -94,6 +94,7 @@ public final class ShareKernel {
   }
 
   private static void jacobian(int r, int j, double[] probs, double[] alpha, double[] out) {
+    // symmetric (w_i P_ia P_ib is symmetric in a, b): accumulate the upper triangle, then mirror
     java.util.Arrays.fill(out, 0, j * j, 0.0);
     for (int i = 0; i < r; i++) {
       int row = i * j;
@@ -102,14 +103,18 @@ public final class ShareKernel {
         double pa = w * probs[row + a];
         int o = a * j;
         out[o + a] += pa;
-        for (int b = 0; b < j; b++) {
+        for (int b = a; b < j; b++) {
           out[o + b] -= pa * probs[row + b];
         }
       }
     }
     double invR = 1.0 / r;
-    for (int q = 0; q < j * j; q++) {
-      out[q] *= invR;
+    for (int a = 0; a < j; a++) {
+      for (int b = a; b < j; b++) {
+        double v = out[a * j + b] * invR;
+        out[a * j + b] = v;
+        out[b * j + a] = v;
+      }
     }
   }
 

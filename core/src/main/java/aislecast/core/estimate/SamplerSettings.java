@@ -8,9 +8,9 @@ import java.io.Serializable;
  * @param chains number of chains sharing each sweep (default 4)
  * @param warmupSweeps sweeps whose draws are discarded while the local samplers adapt (300)
  * @param samplingSweeps sweeps kept as posterior draws (500)
- * @param localSteps local transitions per store per sweep (default 2; the globals are fixed
+ * @param localSteps local transitions per store per sweep (default 1; the globals are fixed
  *     within a sweep, so several transitions stay exact)
- * @param leapfrogSteps leapfrog steps per local HMC transition (16)
+ * @param leapfrogSteps leapfrog steps per local HMC transition (8)
  * @param targetAccept HMC acceptance the step size adapts to (0.8)
  * @param seed run seed: every random stream is keyed by (seed, chain, store, sweep)
  * @param fixLambdaZero fit without price endogeneity (lambda held at 0) for comparisons
@@ -39,7 +39,7 @@ public record SamplerSettings(
   }
 
   public static SamplerSettings defaults(long seed) {
-    return new SamplerSettings(4, 300, 500, 2, 16, 0.8, seed, false, true);
+    return new SamplerSettings(4, 300, 500, 1, 8, 0.8, seed, false, true);
   }
 
   public int totalSweeps() {

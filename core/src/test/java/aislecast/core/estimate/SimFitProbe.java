@@ -16,7 +16,8 @@ public final class SimFitProbe {
     int draws = Integer.parseInt(args[6]);
     SimSettings st = SimSettings.demo().withSizes(stores, weeks, products, 3, 3, draws);
     SimFixture f = new SimFixture(st);
-    var set = new SamplerSettings(4, warm, keep, local, 16, 0.8, 11, false, !"0".equals(System.getenv("RIDGE")));
+    int leapfrog = Integer.parseInt(System.getenv().getOrDefault("LF", "16"));
+    var set = new SamplerSettings(4, warm, keep, local, leapfrog, 0.8, 11, false, !"0".equals(System.getenv("RIDGE")));
     long t0 = System.nanoTime();
     var res = InProcessRunner.run(f.stores, f.catalog, 2, 1, 1, Priors.defaults(2, 3), set);
     System.out.printf("%.1f s%n", (System.nanoTime() - t0) / 1e9);

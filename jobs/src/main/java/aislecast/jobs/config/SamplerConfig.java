@@ -10,8 +10,8 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  * @param chains chains that share every sweep (default 4, at least 2 so R-hat exists)
  * @param warmup sweeps discarded while the local samplers adapt (300)
  * @param sampling sweeps kept as posterior draws (500, at least 4)
- * @param localSteps local transitions per store and chain in one sweep (2)
- * @param leapfrogSteps leapfrog steps per local HMC transition (16)
+ * @param localSteps local transitions per store and chain in one sweep (1)
+ * @param leapfrogSteps leapfrog steps per local HMC transition (8)
  * @param targetAccept local HMC acceptance the step size adapts to (0.8)
  * @param shopperDraws R, quasi-random shopper draws per store when the input has no
  *     shopper_draws table (200)
@@ -50,8 +50,8 @@ public record SamplerConfig(
   public static final int DEFAULT_CHAINS = 4;
   public static final int DEFAULT_WARMUP = 300;
   public static final int DEFAULT_SAMPLING = 500;
-  public static final int DEFAULT_LOCAL_STEPS = 2;
-  public static final int DEFAULT_LEAPFROG_STEPS = 16;
+  public static final int DEFAULT_LOCAL_STEPS = 1;
+  public static final int DEFAULT_LEAPFROG_STEPS = 8;
   public static final double DEFAULT_TARGET_ACCEPT = 0.8;
   public static final int DEFAULT_SHOPPER_DRAWS = 200;
   public static final int DEFAULT_CHECKPOINT_EVERY = 25;
