@@ -50,6 +50,14 @@ public final class EstimateBenchCommand implements Callable<Integer> {
   @Option(names = "--chains", defaultValue = "4", description = "Chains (default: ${DEFAULT-VALUE}).")
   int chains;
 
+  @Option(names = "--local-steps", description = "Local transitions per store, chain and sweep"
+      + " (default: the run configuration's default).")
+  Integer localSteps;
+
+  @Option(names = "--leapfrog-steps", description = "Leapfrog steps per local transition"
+      + " (default: the run configuration's default).")
+  Integer leapfrogSteps;
+
   @Option(names = "--master", defaultValue = "local[*]", description = "Spark master (default: ${DEFAULT-VALUE}).")
   String master;
 
@@ -62,8 +70,9 @@ public final class EstimateBenchCommand implements Callable<Integer> {
     PrintWriter out = new PrintWriter(System.out, true);
     Path dir = work != null ? work : Files.createTempDirectory("aislecast-bench-");
     SamplerConfig sc = SamplerConfig.defaults().withSweeps(warmup, sampling);
-    sc = new SamplerConfig(chains, sc.warmup(), sc.sampling(), sc.localSteps(),
-        sc.leapfrogSteps(), sc.targetAccept(), sc.shopperDraws(), sc.checkpointEvery(),
+    sc = new SamplerConfig(chains, sc.warmup(), sc.sampling(),
+        localSteps != null ? localSteps : sc.localSteps(),
+        leapfrogSteps != null ? leapfrogSteps : sc.leapfrogSteps(), sc.targetAccept(), sc.shopperDraws(), sc.checkpointEvery(),
         sc.rhatMax(), sc.essMin(), 1, sc.partitions(), sc.sumGroup(), sc.ridgeMove(),
         sc.fixLambdaZero());
     RunConfig config = RunConfig.defaults().withSampler(sc);
@@ -81,7 +90,8 @@ public final class EstimateBenchCommand implements Callable<Integer> {
         }
         String runId = "bench-x" + scale + "-" + System.currentTimeMillis();
         out.println("estimate-bench: " + s.stores() + " stores (" + scale + "x), " + chains
-            + " chains, " + warmup + " + " + sampling + " sweeps, master " + master + " ...");
+            + " chains, " + warmup + " + " + sampling + " sweeps, " + sc.localSteps() + " x "
+            + sc.leapfrogSteps() + " local steps, master " + master + " ...");
         EstimateJob.Result r = EstimateJob.run(spark.spark(), config,
             EstimateJob.Options.of(input.toString(), dir.resolve("runs").toString(), runId,
                 CommonOptions.DEFAULT_SEED).withAllowUnconverged(true), out);

@@ -98,7 +98,7 @@ public final class RunLog {
    * A status line: {@code message} in text form; in kv form a record with {@code event} and
    * the given key-value pairs (keys and values alternate), then {@code msg}.
    */
-  public void info(String event, String message, Object... keyValues) {
+  public synchronized void info(String event, String message, Object... keyValues) {
     if (kv) {
       Object[] all = new Object[keyValues.length + 2];
       System.arraycopy(keyValues, 0, all, 0, keyValues.length);
@@ -113,7 +113,7 @@ public final class RunLog {
   }
 
   /** A progress update: a record, a redrawn bar or a line (see the class comment). */
-  public void progress(Progress p) {
+  public synchronized void progress(Progress p) {
     if (kv) {
       record("info", p.unit(), p.unit(), p.done(), "of", p.total(), "phase", p.phase(),
           "elapsed_s", round1(p.elapsedSeconds()), "eta_s", round1(p.etaSeconds()),
@@ -135,7 +135,7 @@ public final class RunLog {
   }
 
   /** Ends an open progress bar with a newline so the next line starts clean. */
-  public void endBar() {
+  public synchronized void endBar() {
     if (barOpen) {
       sink.println();
       barOpen = false;

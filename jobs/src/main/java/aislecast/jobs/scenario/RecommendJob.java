@@ -16,6 +16,7 @@ import aislecast.jobs.config.RunFailure;
 import aislecast.jobs.io.RunDirectory;
 import aislecast.jobs.io.RunIdentity;
 import aislecast.jobs.io.RunLog;
+import aislecast.jobs.io.TaskProgress;
 import aislecast.jobs.validate.InputValidator;
 import aislecast.jobs.validate.ValidatedInput;
 import com.fasterxml.jackson.databind.JsonNode;
@@ -172,8 +173,14 @@ public final class RecommendJob {
           prep.catalog().attributes());
       JavaRDD<Row> rows = work.flatMap(w -> recommend(w, settings(maxMove, response, quantile),
           objective).iterator());
-      spark.createDataFrame(rows, SCHEMA).coalesce(1).write().mode(SaveMode.ErrorIfExists)
-          .parquet(dir + "/" + RECOMMENDATIONS);
+      // repartition, not coalesce: the optimisation stays one task per store partition and only
+      // the finished rows meet in one file, sorted so the file does not depend on task timing
+      try (TaskProgress progress = TaskProgress.start(spark, log, "optimise")) {
+        spark.createDataFrame(rows, SCHEMA).repartition(1)
+            .sortWithinPartitions("store_id", "product_id").write().mode(SaveMode.ErrorIfExists)
+            .parquet(dir + "/" + RECOMMENDATIONS);
+        progress.complete();
+      }
       long count = spark.read().parquet(dir + "/" + RECOMMENDATIONS).count();
       seconds.put("optimise", secondsSince(t1));
       seconds.put("total", secondsSince(t0));

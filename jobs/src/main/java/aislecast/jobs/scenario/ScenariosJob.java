@@ -14,6 +14,7 @@ import aislecast.jobs.io.InputFingerprint;
 import aislecast.jobs.io.RunDirectory;
 import aislecast.jobs.io.RunIdentity;
 import aislecast.jobs.io.RunLog;
+import aislecast.jobs.io.TaskProgress;
 import aislecast.jobs.validate.InputValidator;
 import aislecast.jobs.validate.ValidatedInput;
 import com.fasterxml.jackson.databind.JsonNode;
@@ -125,8 +126,11 @@ public final class ScenariosJob {
           prep.catalog().attributes()).persist(StorageLevel.MEMORY_AND_DISK());
       Dataset<Row> detailRows = spark.createDataFrame(work.flatMap(ScenariosJob::evaluate),
           ScenarioTables.PRODUCT_DETAIL_SCHEMA);
-      detailRows.write().mode(SaveMode.ErrorIfExists).partitionBy("scenario")
-          .parquet(dir + "/" + ScenarioTables.PRODUCT_DETAIL);
+      try (TaskProgress progress = TaskProgress.start(spark, log, "evaluate")) {
+        detailRows.write().mode(SaveMode.ErrorIfExists).partitionBy("scenario")
+            .parquet(dir + "/" + ScenarioTables.PRODUCT_DETAIL);
+        progress.complete();
+      }
       seconds.put("evaluate", secondsSince(t1));
 
       long t2 = System.nanoTime();
