@@ -1,14 +1,9 @@
 package aislecast.jobs.validate;
 
-import static org.apache.spark.sql.functions.broadcast;
-import static org.apache.spark.sql.functions.coalesce;
 import static org.apache.spark.sql.functions.col;
-import static org.apache.spark.sql.functions.concat;
 import static org.apache.spark.sql.functions.date_format;
 import static org.apache.spark.sql.functions.lit;
-import static org.apache.spark.sql.functions.sum;
 import static org.apache.spark.sql.functions.to_date;
-import static org.apache.spark.sql.functions.when;
 
 import aislecast.jobs.config.InputConfig;
 import aislecast.jobs.config.RunConfig;
@@ -18,23 +13,28 @@ import aislecast.jobs.io.InputTables.Format;
 import aislecast.jobs.io.InputTables.RawTable;
 import java.io.IOException;
 import java.io.OutputStream;
+import java.io.Serializable;
 import java.nio.charset.StandardCharsets;
 import java.util.ArrayList;
+import java.util.Arrays;
 import java.util.HashMap;
+import java.util.HashSet;
 import java.util.LinkedHashMap;
 import java.util.List;
 import java.util.Map;
 import java.util.Optional;
+import java.util.Set;
 import org.apache.hadoop.fs.FileSystem;
 import org.apache.hadoop.fs.Path;
 import org.apache.spark.api.java.JavaRDD;
+import org.apache.spark.api.java.JavaSparkContext;
+import org.apache.spark.broadcast.Broadcast;
 import org.apache.spark.sql.Column;
 import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
 import org.apache.spark.sql.RowFactory;
 import org.apache.spark.sql.SaveMode;
 import org.apache.spark.sql.SparkSession;
-import org.apache.spark.sql.expressions.Window;
 import org.apache.spark.sql.types.BooleanType;
 import org.apache.spark.sql.types.DataType;
 import org.apache.spark.sql.types.DataTypes;
@@ -110,7 +110,6 @@ public final class InputValidator {
 
   private static final String R = TableSpec.REASON;
   private static final String M = TableSpec.MESSAGE;
-  private static final String FLAG = "_flag";
 
   private InputValidator() {}
 
@@ -119,6 +118,11 @@ public final class InputValidator {
    * {@code validation/summary} (Parquet) and {@code validation/summary.txt} under {@code runDir}
    * (a staging folder the caller publishes). It does not enforce the reject share: call
    * {@link ValidatedInput#requireRejectShareAtMost} after publishing.
+   *
+   * <p>products, stores and traffic are checked on the driver (they hold one row per product,
+   * store or store-week, and their keys were always broadcast to the sales check anyway); sales
+   * and shopper_draws are checked in one grouped pass each (per store-week and per store), so a
+   * validation runs a handful of small Spark jobs rather than a long chain of joins and windows.
    *
    * @throws InputException (exit 2) when a table is missing, its schema is wrong, or sales is
    *     empty; nothing is written then
@@ -151,126 +155,135 @@ public final class InputValidator {
       }
     }
 
+    JavaSparkContext jsc = JavaSparkContext.fromSparkContext(spark.sparkContext());
     List<Dataset<Row>> persisted = new ArrayList<>();
-    List<Dataset<Row>> intermediate = new ArrayList<>();
-    Map<String, Dataset<Row>> parsedByTable = new HashMap<>();
+    List<JavaRDD<Row>> intermediate = new ArrayList<>();
+    Map<String, Long> inputRows = new HashMap<>();
 
-    Dataset<Row> products = rejectDuplicates(parse(spark, productsRaw, productsSpec, intermediate, parsedByTable),
-        "product_id");
-    products = keep(products, persisted);
-    Dataset<Row> acceptedProducts = accepted(products);
+    SmallTable products = SmallTable.read(productsRaw, productsSpec);
+    products.checks.rejectDuplicates(products.rows, "product_id");
+    Set<String> acceptedProducts = new HashSet<>();
+    for (Object[] p : products.accepted()) {
+      acceptedProducts.add((String) p[products.checks.at("product_id")]);
+    }
 
-    Dataset<Row> storesChecked =
-        keep(rejectDuplicates(parse(spark, storesRaw, storesSpec, intermediate, parsedByTable), "store_id"),
-            intermediate);
-    Dataset<Row> knownStores = accepted(storesChecked);
+    SmallTable stores = SmallTable.read(storesRaw, storesSpec);
+    stores.checks.rejectDuplicates(stores.rows, "store_id");
+    int storeId = stores.checks.at("store_id");
+    Map<String, Long> storeSizes = new HashMap<>();
+    for (Object[] s : stores.accepted()) {
+      storeSizes.put((String) s[storeId], (Long) s[stores.checks.at("shoppers")]);
+    }
 
-    Dataset<Row> sales = parse(spark, salesRaw, salesSpec, intermediate, parsedByTable);
-    Dataset<Row> salesKeys = sales.filter(col("store_id").isNotNull()).select("store_id", "week");
+    JavaRDD<Row> salesParsed = parse(salesRaw, salesSpec, intermediate);
+    RowChecks salesChecks = new RowChecks(salesSpec, 1);
+    int salesStore = salesChecks.at("store_id");
+    int salesWeek = salesChecks.at("week");
+    // Store-weeks of every sales row with a store, accepted or not (see the class comment).
+    Set<List<Object>> salesMarkets = new HashSet<>();
+    for (List<List<Object>> part : salesParsed.mapPartitions(rows -> {
+      Set<List<Object>> keys = new HashSet<>();
+      rows.forEachRemaining(r -> {
+        if (!r.isNullAt(salesStore)) {
+          keys.add(Arrays.asList(r.get(salesStore), r.get(salesWeek)));
+        }
+      });
+      return List.of(List.copyOf(keys)).iterator();
+    }).collect()) {
+      salesMarkets.addAll(part);
+    }
+    Set<Object> salesStores = new HashSet<>();
+    for (List<Object> m : salesMarkets) {
+      salesStores.add(m.get(0));
+    }
 
-    Dataset<Row> traffic = null;
+    SmallTable traffic = null;
+    Set<List<Object>> rejectedTraffic = new HashSet<>();
+    Map<List<Object>, Long> trafficSizes = new HashMap<>();
     if (trafficSpec != null) {
-      traffic = parse(spark, trafficRaw.get(), trafficSpec, intermediate, parsedByTable);
-      traffic = rejectDuplicates(traffic, "store_id", "week");
-      traffic = flagByMatch(traffic, knownStores.select("store_id"), false,
-          RejectReason.UNKNOWN_STORE,
-          concat(lit("store_id '"), col("store_id"), lit("' is not among the accepted stores")),
-          true, "store_id");
-      traffic = flagByMatch(traffic, salesKeys, false, RejectReason.MARKET_WITHOUT_PRODUCTS,
-          concat(lit("store_id '"), col("store_id"), lit("' week "), col("week"),
-              lit(" has no sales rows (no products on the shelf)")),
-          false, "store_id", "week");
-      traffic = keep(traffic, persisted);
+      traffic = SmallTable.read(trafficRaw.get(), trafficSpec);
+      RowChecks c = traffic.checks;
+      c.rejectDuplicates(traffic.rows, "store_id", "week");
+      int store = c.at("store_id");
+      int week = c.at("week");
+      for (Object[] t : traffic.rows) {
+        if (c.open(t) && !storeSizes.containsKey(t[store])) {
+          c.reject(t, RejectReason.UNKNOWN_STORE,
+              "store_id '" + t[store] + "' is not among the accepted stores");
+        }
+        if (c.open(t) && !salesMarkets.contains(Arrays.asList(t[store], t[week]))) {
+          c.reject(t, RejectReason.MARKET_WITHOUT_PRODUCTS, "store_id '" + t[store] + "' week "
+              + t[week] + " has no sales rows (no products on the shelf)");
+        }
+        List<Object> key = Arrays.asList(t[store], t[week]);
+        if (c.open(t)) {
+          trafficSizes.put(key, (Long) t[c.at("shoppers")]);
+        } else if (t[store] != null && t[week] != null) {
+          rejectedTraffic.add(key);
+        }
+      }
     }
 
-    sales = rejectDuplicates(sales, "store_id", "week", "product_id");
-    sales = flagByMatch(sales, knownStores.select("store_id"), false, RejectReason.UNKNOWN_STORE,
-        concat(lit("store_id '"), col("store_id"),
-            lit("' is not among the accepted stores (absent from stores or rejected there)")),
-        true, "store_id");
-    sales = flagByMatch(sales, acceptedProducts.select("product_id"), false,
-        RejectReason.UNKNOWN_PRODUCT,
-        concat(lit("product_id '"), col("product_id"),
-            lit("' is not among the accepted products (absent from products or rejected there)")),
-        true, "product_id");
-    Column trafficSize = lit(null).cast(DataTypes.LongType);
-    if (traffic != null) {
-      Dataset<Row> rejectedTraffic =
-          traffic.filter(col(R).isNotNull().and(col("store_id").isNotNull())
-              .and(col("week").isNotNull())).select("store_id", "week");
-      sales = flagByMatch(sales, rejectedTraffic, true, RejectReason.MARKET_SIZE_UNAVAILABLE,
-          concat(lit("the traffic row for store_id '"), col("store_id"), lit("' week "),
-              col("week"), lit(" was rejected, so the market size is unknown")),
-          true, "store_id", "week");
-      Dataset<Row> t = accepted(traffic).select(col("store_id").as("_t_store"),
-          col("week").as("_t_week"), col("shoppers").as("_t_size"));
-      sales = sales.join(broadcast(t), col("store_id").equalTo(col("_t_store"))
-          .and(col("week").equalTo(col("_t_week"))), "left").drop("_t_store", "_t_week");
-      trafficSize = col("_t_size");
-    }
-    Dataset<Row> storeSizes =
-        knownStores.select(col("store_id").as("_s_store"), col("shoppers").as("_s_size"));
-    sales = sales.join(broadcast(storeSizes), col("store_id").equalTo(col("_s_store")), "left")
-        .drop("_s_store");
-    if (traffic == null) {
-      sales = sales.withColumn("_t_size", trafficSize);
-    }
-    sales = sales.withColumn(MARKET_SIZE, coalesce(col("_t_size"), col("_s_size")))
-        .withColumn("_size_source",
-            when(col("_t_size").isNotNull(), lit("traffic.shoppers"))
-                .otherwise(lit("stores.shoppers")));
-    Column marketUnits = sum(when(col(R).isNull(), col("units"))).over(
-        Window.partitionBy(col("store_id"), col("week")));
-    sales = sales.withColumn("_market_units", marketUnits);
-    sales = flag(sales, col("_market_units").gt(col(MARKET_SIZE)),
-        RejectReason.UNITS_ABOVE_MARKET_SIZE,
-        concat(lit("units of store_id '"), col("store_id"), lit("' week "), col("week"),
-            lit(" sum to "), col("_market_units").cast("string"), lit(", above the market size "),
-            col(MARKET_SIZE).cast("string"), lit(" ("), col("_size_source"),
-            lit("); every row of this market is rejected")));
-    sales = sales.drop("_t_size", "_s_size", "_size_source", "_market_units");
-    sales = keep(sales, persisted);
+    Broadcast<MarketKeys> keys = jsc.broadcast(
+        new MarketKeys(storeSizes, acceptedProducts, rejectedTraffic, trafficSizes));
+    JavaRDD<Row> salesChecked = salesParsed
+        .groupBy(r -> Arrays.asList(r.get(salesStore), r.get(salesWeek)))
+        .flatMap(market -> checkMarket(market._2(), salesChecks, keys.value()).iterator());
+    StructType salesSchema = salesSpec.parsedSchema()
+        .add(DataTypes.createStructField(MARKET_SIZE, DataTypes.LongType, true));
+    Dataset<Row> sales = keep(spark.createDataFrame(salesChecked, salesSchema), persisted);
     Dataset<Row> acceptedSales = accepted(sales);
 
-    Dataset<Row> stores = flagByMatch(storesChecked, salesKeys.select("store_id"), false,
-        RejectReason.STORE_WITHOUT_MARKETS,
-        concat(lit("store_id '"), col("store_id"),
-            lit("' has no sales rows, so it has no market to estimate")),
-        false, "store_id");
-    stores = keep(stores, persisted);
+    for (Object[] s : stores.rows) {
+      if (!salesStores.contains(s[storeId])) {
+        stores.checks.reject(s, RejectReason.STORE_WITHOUT_MARKETS, "store_id '" + s[storeId]
+            + "' has no sales rows, so it has no market to estimate");
+      }
+    }
+    Set<String> acceptedStores = new HashSet<>();
+    for (Object[] s : stores.accepted()) {
+      acceptedStores.add((String) s[storeId]);
+    }
 
     Dataset<Row> draws = null;
+    JavaRDD<Row> drawsParsed = null;
     if (drawsSpec != null) {
-      draws = parse(spark, drawsRaw.get(), drawsSpec, intermediate, parsedByTable);
-      draws = rejectDuplicates(draws, "store_id", "draw");
-      draws = flagByMatch(draws, accepted(stores).select("store_id"), false,
-          RejectReason.UNKNOWN_STORE,
-          concat(lit("store_id '"), col("store_id"),
-              lit("' is not among the accepted stores (draw "), col("draw").cast("string"),
-              lit(")")),
-          true, "store_id");
-      draws = keep(draws, persisted);
+      drawsParsed = parse(drawsRaw.get(), drawsSpec, intermediate);
+      RowChecks drawChecks = new RowChecks(drawsSpec, 0);
+      int drawStore = drawChecks.at("store_id");
+      Broadcast<Set<String>> known = jsc.broadcast(acceptedStores);
+      JavaRDD<Row> drawsChecked = drawsParsed
+          .groupBy(r -> Arrays.asList(r.get(drawStore)))
+          .flatMap(store -> checkDraws(store._2(), drawChecks, known.value()).iterator());
+      draws = keep(spark.createDataFrame(drawsChecked, drawsSpec.parsedSchema()), persisted);
     }
 
     Map<String, Dataset<Row>> finals = new LinkedHashMap<>();
     finals.put(SALES, sales);
-    finals.put(PRODUCTS, products);
-    finals.put(STORES, stores);
+    finals.put(PRODUCTS, products.toDataset(spark));
+    finals.put(STORES, stores.toDataset(spark));
+    inputRows.put(PRODUCTS, (long) products.rows.size());
+    inputRows.put(STORES, (long) stores.rows.size());
     if (traffic != null) {
-      finals.put(TRAFFIC, traffic);
+      finals.put(TRAFFIC, traffic.toDataset(spark));
+      inputRows.put(TRAFFIC, (long) traffic.rows.size());
     }
     if (draws != null) {
       finals.put(SHOPPER_DRAWS, draws);
     }
-    ValidationSummary summary = count(finals, parsedByTable);
+    inputRows.put(SALES, salesParsed.count());
+    if (drawsParsed != null) {
+      inputRows.put(SHOPPER_DRAWS, drawsParsed.count());
+    }
+    ValidationSummary summary = count(finals, inputRows);
     if (summary.table(SALES).inputRows() == 0) {
       unpersistAll(persisted);
-      unpersistAll(intermediate);
+      intermediate.forEach(r -> r.unpersist(false));
       throw new InputException("table sales (" + salesRaw.location() + ") has no rows");
     }
 
     writeOutputs(spark, finals, summary, config.validation().maxRejectShare(), runDir);
-    unpersistAll(intermediate);
+    intermediate.forEach(r -> r.unpersist(false));
 
     ValidatedInput.Columns columns = new ValidatedInput.Columns(
         salesSpec.names(FieldKind.NUMBER),
@@ -280,16 +293,137 @@ public final class InputValidator {
         drawsSpec == null ? List.of() : drawsSpec.names(FieldKind.NUMBER));
     return new ValidatedInput(
         output(acceptedSales, salesSpec, MARKET_SIZE),
-        output(accepted(products), productsSpec),
-        output(accepted(stores), storesSpec),
-        traffic == null ? null : output(accepted(traffic), trafficSpec),
+        output(accepted(finals.get(PRODUCTS)), productsSpec),
+        output(accepted(finals.get(STORES)), storesSpec),
+        traffic == null ? null : output(accepted(finals.get(TRAFFIC)), trafficSpec),
         draws == null ? null : output(accepted(draws), drawsSpec),
         columns, summary, notes, persisted);
   }
 
-  /** Reads raw rows into the parsed schema, numbering rows 1.. in file order. */
-  private static Dataset<Row> parse(SparkSession spark, RawTable raw, TableSpec spec,
-      List<Dataset<Row>> persisted, Map<String, Dataset<Row>> byTable) {
+  /** Keys the sales check looks up; built on the driver and broadcast. */
+  private record MarketKeys(Map<String, Long> storeSizes, Set<String> products,
+      Set<List<Object>> rejectedTraffic, Map<List<Object>, Long> trafficSizes)
+      implements Serializable {}
+
+  /**
+   * Checks the sales rows of one store-week (the parse rejects come with the rows): duplicate
+   * store-week-product, unknown store, unknown product, rejected traffic row, then units above the
+   * market size. Each row also gets its market size (last column).
+   */
+  private static List<Row> checkMarket(Iterable<Row> rows, RowChecks c, MarketKeys k) {
+    List<Object[]> market = new ArrayList<>();
+    for (Row r : rows) {
+      market.add(c.widen(values(r)));
+    }
+    c.rejectDuplicates(market, "store_id", "week", "product_id");
+    int storeAt = c.at("store_id");
+    int weekAt = c.at("week");
+    int productAt = c.at("product_id");
+    int unitsAt = c.at("units");
+    int sizeAt = c.width() - 1;
+    Long units = null;
+    for (Object[] a : market) {
+      Object store = a[storeAt];
+      Object week = a[weekAt];
+      if (c.open(a) && !k.storeSizes().containsKey(store)) {
+        c.reject(a, RejectReason.UNKNOWN_STORE, "store_id '" + store
+            + "' is not among the accepted stores (absent from stores or rejected there)");
+      }
+      if (c.open(a) && !k.products().contains(a[productAt])) {
+        c.reject(a, RejectReason.UNKNOWN_PRODUCT, "product_id '" + a[productAt]
+            + "' is not among the accepted products (absent from products or rejected there)");
+      }
+      List<Object> key = Arrays.asList(store, week);
+      if (c.open(a) && k.rejectedTraffic().contains(key)) {
+        c.reject(a, RejectReason.MARKET_SIZE_UNAVAILABLE, "the traffic row for store_id '"
+            + store + "' week " + week + " was rejected, so the market size is unknown");
+      }
+      Long fromTraffic = k.trafficSizes().get(key);
+      a[sizeAt] = fromTraffic != null ? fromTraffic : k.storeSizes().get(store);
+      if (c.open(a)) {
+        units = (units == null ? 0L : units) + (Long) a[unitsAt];
+      }
+    }
+    List<Row> out = new ArrayList<>(market.size());
+    for (Object[] a : market) {
+      Long size = (Long) a[sizeAt];
+      if (c.open(a) && size != null && units > size) {
+        List<Object> key = Arrays.asList(a[storeAt], a[weekAt]);
+        String source =
+            k.trafficSizes().containsKey(key) ? "traffic.shoppers" : "stores.shoppers";
+        c.reject(a, RejectReason.UNITS_ABOVE_MARKET_SIZE, "units of store_id '" + a[storeAt]
+            + "' week " + a[weekAt] + " sum to " + units + ", above the market size " + size
+            + " (" + source + "); every row of this market is rejected");
+      }
+      out.add(RowFactory.create(a));
+    }
+    return out;
+  }
+
+  /** Checks the shopper draws of one store: duplicate store-draw, then store not accepted. */
+  private static List<Row> checkDraws(Iterable<Row> rows, RowChecks c, Set<String> stores) {
+    List<Object[]> draws = new ArrayList<>();
+    for (Row r : rows) {
+      draws.add(values(r));
+    }
+    c.rejectDuplicates(draws, "store_id", "draw");
+    int storeAt = c.at("store_id");
+    List<Row> out = new ArrayList<>(draws.size());
+    for (Object[] a : draws) {
+      if (c.open(a) && !stores.contains(a[storeAt])) {
+        c.reject(a, RejectReason.UNKNOWN_STORE, "store_id '" + a[storeAt]
+            + "' is not among the accepted stores (draw " + a[c.at("draw")] + ")");
+      }
+      out.add(RowFactory.create(a));
+    }
+    return out;
+  }
+
+  private static Object[] values(Row r) {
+    Object[] a = new Object[r.length()];
+    for (int i = 0; i < a.length; i++) {
+      a[i] = r.get(i);
+    }
+    return a;
+  }
+
+  /** A small table's parsed rows, held on the driver in file order. */
+  private static final class SmallTable {
+    final TableSpec spec;
+    final RowChecks checks;
+    final List<Object[]> rows;
+
+    private SmallTable(TableSpec spec, List<Object[]> rows) {
+      this.spec = spec;
+      this.checks = new RowChecks(spec, 0);
+      this.rows = rows;
+    }
+
+    static SmallTable read(RawTable raw, TableSpec spec) {
+      RowParser parser = new RowParser(spec);
+      List<Row> source = sourceColumns(raw, spec).collectAsList();
+      List<Object[]> rows = new ArrayList<>(source.size());
+      for (int i = 0; i < source.size(); i++) {
+        rows.add(parser.values(source.get(i), i));
+      }
+      return new SmallTable(spec, rows);
+    }
+
+    List<Object[]> accepted() {
+      return rows.stream().filter(checks::open).toList();
+    }
+
+    Dataset<Row> toDataset(SparkSession spark) {
+      List<Row> out = new ArrayList<>(rows.size());
+      for (Object[] r : rows) {
+        out.add(RowFactory.create(r));
+      }
+      return spark.createDataFrame(out, spec.parsedSchema());
+    }
+  }
+
+  /** The spec's source columns of a raw table, in field order, in the parser's input types. */
+  private static Dataset<Row> sourceColumns(RawTable raw, TableSpec spec) {
     StructType rawSchema = raw.rows().schema();
     List<Column> select = new ArrayList<>();
     for (TableSpec.Field f : spec.fields()) {
@@ -305,13 +439,18 @@ public final class InputValidator {
       }
       select.add(c);
     }
+    return raw.rows().select(select.toArray(new Column[0]));
+  }
+
+  /** Parses a large table's rows on the executors, numbering rows 1.. in file order. */
+  private static JavaRDD<Row> parse(RawTable raw, TableSpec spec, List<JavaRDD<Row>> persisted) {
     RowParser parser = new RowParser(spec);
-    JavaRDD<Row> rows = raw.rows().select(select.toArray(new Column[0])).javaRDD()
+    JavaRDD<Row> rows = sourceColumns(raw, spec).javaRDD()
         .zipWithIndex()
-        .map(t -> parser.parse(t._1(), t._2()));
-    Dataset<Row> parsed = keep(spark.createDataFrame(rows, spec.parsedSchema()), persisted);
-    byTable.put(spec.table(), parsed);
-    return parsed;
+        .map(t -> RowFactory.create(parser.values(t._1(), t._2())))
+        .persist(StorageLevel.MEMORY_AND_DISK());
+    persisted.add(rows);
+    return rows;
   }
 
   private static Dataset<Row> keep(Dataset<Row> d, List<Dataset<Row>> list) {
@@ -330,59 +469,6 @@ public final class InputValidator {
     return d.filter(col(R).isNull());
   }
 
-  /** Sets reason and message on rows not yet rejected for which {@code cond} holds. */
-  private static Dataset<Row> flag(
-      Dataset<Row> d, Column cond, RejectReason reason, Column message) {
-    return d.withColumn(FLAG, col(R).isNull().and(coalesce(cond, lit(false))))
-        .withColumn(M, when(col(FLAG), message).otherwise(col(M)))
-        .withColumn(R, when(col(FLAG), lit(reason.code())).otherwise(col(R)))
-        .drop(FLAG);
-  }
-
-  /** Rejects every copy of a key held by more than one not-yet-rejected row. */
-  private static Dataset<Row> rejectDuplicates(Dataset<Row> d, String... keys) {
-    Column[] k = new Column[keys.length];
-    List<Column> describe = new ArrayList<>();
-    for (int i = 0; i < keys.length; i++) {
-      k[i] = col(keys[i]);
-      describe.add(lit((i == 0 ? "" : ", ") + keys[i] + " '"));
-      describe.add(col(keys[i]).cast("string"));
-      describe.add(lit("'"));
-    }
-    d = d.withColumn("_copies",
-        sum(when(col(R).isNull(), lit(1L)).otherwise(lit(0L))).over(Window.partitionBy(k)));
-    describe.add(lit(" appears in "));
-    describe.add(col("_copies").cast("string"));
-    describe.add(lit(" rows; every copy is rejected"));
-    return flag(d, col("_copies").gt(1), RejectReason.DUPLICATE_KEY,
-        concat(describe.toArray(new Column[0]))).drop("_copies");
-  }
-
-  /**
-   * Flags rows whose keys are absent from {@code keys} ({@code whenMatched} false) or present in
-   * it ({@code whenMatched} true). {@code keys} holds exactly the key columns.
-   */
-  private static Dataset<Row> flagByMatch(Dataset<Row> d, Dataset<Row> keys, boolean whenMatched,
-      RejectReason reason, Column message, boolean small, String... keyNames) {
-    List<Column> renamed = new ArrayList<>();
-    Column on = lit(true);
-    for (String k : keyNames) {
-      renamed.add(col(k).as("_m_" + k));
-      on = on.and(col(k).equalTo(col("_m_" + k)));
-    }
-    renamed.add(lit(true).as("_m"));
-    Dataset<Row> right = keys.distinct().select(renamed.toArray(new Column[0]));
-    // Key sets of stores, products and traffic are small: broadcast them rather than shuffle
-    // the sales table.
-    Dataset<Row> joined = d.join(small ? broadcast(right) : right, on, "left");
-    Column cond = whenMatched ? col("_m").isNotNull() : col("_m").isNull();
-    Dataset<Row> out = flag(joined, cond, reason, message).drop("_m");
-    for (String k : keyNames) {
-      out = out.drop("_m_" + k);
-    }
-    return out;
-  }
-
   /** Accepted rows with canonical names and types (week as a date). */
   private static Dataset<Row> output(Dataset<Row> accepted, TableSpec spec, String... extra) {
     List<Column> cols = new ArrayList<>();
@@ -398,20 +484,11 @@ public final class InputValidator {
 
   /**
    * Counts outcomes per table and checks them against a separate count of the rows as read (the
-   * row parser maps rows one to one), so a row lost or duplicated by a join or window fails the
-   * run instead of going unnoticed.
+   * row parser maps rows one to one), so a row lost or duplicated by a check fails the run
+   * instead of going unnoticed.
    */
   private static ValidationSummary count(
-      Map<String, Dataset<Row>> finals, Map<String, Dataset<Row>> parsed) {
-    Dataset<Row> read = null;
-    for (String table : finals.keySet()) {
-      Dataset<Row> part = parsed.get(table).select(lit(table).as("table"));
-      read = read == null ? part : read.unionAll(part);
-    }
-    Map<String, Long> inputRows = new HashMap<>();
-    for (Row r : read.groupBy("table").count().collectAsList()) {
-      inputRows.put(r.getString(0), r.getLong(1));
-    }
+      Map<String, Dataset<Row>> finals, Map<String, Long> inputRows) {
     Dataset<Row> all = null;
     for (Map.Entry<String, Dataset<Row>> e : finals.entrySet()) {
       Dataset<Row> part = e.getValue().select(lit(e.getKey()).as("table"), col(R));

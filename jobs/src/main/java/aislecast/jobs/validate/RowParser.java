@@ -2,10 +2,9 @@ package aislecast.jobs.validate;
 
 import java.io.Serializable;
 import org.apache.spark.sql.Row;
-import org.apache.spark.sql.RowFactory;
 
 /**
- * Parses one raw row (the spec's source columns, in field order) into a row of
+ * Parses one raw row (the spec's source columns, in field order) into the values of a row of
  * {@link TableSpec#parsedSchema()}. The first failing field gives the row's reject reason; key
  * and week fields keep their raw text even then, so a rejected row can still be identified.
  */
@@ -28,8 +27,9 @@ final class RowParser implements Serializable {
   /**
    * @param raw source values in field order; not modified
    * @param index 0-based position of the row in the table
+   * @return the row's values in the order of {@link TableSpec#parsedSchema()}
    */
-  Row parse(Row raw, long index) {
+  Object[] values(Row raw, long index) {
     int n = kinds.length;
     Object[] out = new Object[n + 3];
     out[0] = index + 1;
@@ -53,6 +53,6 @@ final class RowParser implements Serializable {
     }
     out[n + 1] = reason;
     out[n + 2] = message;
-    return RowFactory.create(out);
+    return out;
   }
 }
