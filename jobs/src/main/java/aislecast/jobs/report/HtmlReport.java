@@ -161,6 +161,10 @@ final class HtmlReport {
         if (prefix.isEmpty() && e.getKey().equals("configuration")) {
           continue;
         }
+        if (prefix.isEmpty() && e.getKey().equals("fingerprints") && e.getValue().isObject()) {
+          fingerprints(e.getValue(), out);
+          continue;
+        }
         flatten(prefix.isEmpty() ? e.getKey() : prefix + "." + e.getKey(), e.getValue(), out);
       }
     } else if (n.isArray()) {
@@ -174,6 +178,62 @@ final class HtmlReport {
     } else {
       out.add(new String[] {prefix, n.isNull() ? "(not set)" : n.asText()});
     }
+  }
+
+  /** Digests shown to a person: how many characters of a hex digest the report prints. */
+  static final int DIGEST_CHARS = 12;
+
+  /**
+   * run.json's {@code fingerprints}, one line per digest instead of the raw file lists: the
+   * configuration digest, and per fingerprinted part (inputs, scenario files, other runs) the
+   * number of files, their total size and the combined digest, each digest cut to
+   * {@link #DIGEST_CHARS} hex characters (enough to tell runs apart by eye; run.json has them in
+   * full). Keys of other shapes are listed as before.
+   */
+  static void fingerprints(JsonNode fp, List<String[]> out) {
+    String algorithm = fp.path("algorithm").asText("digest");
+    Iterator<Map.Entry<String, JsonNode>> it = fp.fields();
+    while (it.hasNext()) {
+      Map.Entry<String, JsonNode> e = it.next();
+      String key = e.getKey();
+      JsonNode v = e.getValue();
+      if (key.equals("algorithm")) {
+        continue;
+      }
+      if (key.equals("configuration_sha256") && v.isTextual()) {
+        out.add(new String[] {"fingerprints.configuration", algorithm + " " + shortDigest(v)});
+      } else if (v.isObject() && v.path("files").isArray() && v.path("sha256").isTextual()) {
+        int files = v.get("files").size();
+        long bytes = 0;
+        for (JsonNode f : v.get("files")) {
+          bytes += f.path("bytes").asLong(0);
+        }
+        out.add(new String[] {"fingerprints." + key, files + (files == 1 ? " file, " : " files, ")
+            + bytes(bytes) + ", " + algorithm + " " + shortDigest(v.get("sha256"))});
+      } else {
+        flatten("fingerprints." + key, v, out);
+      }
+    }
+  }
+
+  private static String shortDigest(JsonNode hex) {
+    String s = hex.asText();
+    return s.length() > DIGEST_CHARS ? s.substring(0, DIGEST_CHARS) + "\u2026" : s;
+  }
+
+  /** Decimal units (kB = 1000 bytes), one decimal above 1 kB. */
+  static String bytes(long n) {
+    if (n < 1000) {
+      return n + " bytes";
+    }
+    String[] units = {"kB", "MB", "GB", "TB"};
+    double v = n;
+    int u = -1;
+    while (v >= 1000 && u < units.length - 1) {
+      v /= 1000;
+      u++;
+    }
+    return String.format(Locale.ROOT, "%.1f %s", v, units[u]);
   }
 
   private static String pretty(JsonNode n) {

@@ -101,6 +101,14 @@ class ReportCommandTest {
     assertTrue(html.contains("estimate run: " + runs.estimate));
     assertTrue(html.contains("<td class=\"t\">convergence.rhat_max_limit</td><td class=\"t\">"
         + "1.010</td>"), "limits shown among the run facts");
+    // fingerprints as one readable line each: files, total size, digests cut to 12 hex digits
+    assertTrue(html.contains("<td class=\"t\">fingerprints.inputs</td><td class=\"t\">3 files,"
+        + " 1.1 MB, SHA-256 " + SyntheticRuns.INPUT_SHA256.substring(0, 12) + "\u2026</td>"), html);
+    assertTrue(html.contains("<td class=\"t\">fingerprints.configuration</td><td class=\"t\">"
+        + "SHA-256 " + SyntheticRuns.CONFIGURATION_SHA256.substring(0, 12) + "\u2026</td>"));
+    assertFalse(html.contains(SyntheticRuns.INPUT_SHA256), "no full digests");
+    assertFalse(html.contains("sales.csv") || html.contains("&quot;path&quot;"),
+        "no raw file lists");
 
     // the convergence table flags exactly the slow parameter
     assertEquals(1, countOf(html, "<tr class=\"flag\">"));

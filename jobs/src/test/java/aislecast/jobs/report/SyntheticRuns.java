@@ -39,6 +39,14 @@ final class SyntheticRuns {
   static final int STORES = 12;
   static final String[] PRODUCTS = {"FZ01", "FZ02", "FZ03", "OK11", "OK12", "PL20"};
   static final List<String> SCENARIOS = List.of("cut-fz01-hold", "cut-fz01-nash");
+  /** Digests in the estimate run's run.json, shaped as RunIdentity writes them. */
+  static final String INPUT_SHA256 =
+      "3b1f0c9e7a2d4c6b8e0f1a2b3c4d5e6f7a8b9c0d1e2f3a4b5c6d7e8f9a0b1c2d";
+  static final String CONFIGURATION_SHA256 =
+      "c0ffee00d15ea5e5feedfacecafebeef0123456789abcdef0123456789abcdef";
+  /** Input files fingerprinted: path and size (sum 1,088,367 bytes). */
+  static final Map<String, Long> INPUT_FILES =
+      Map.of("sales.csv", 1_082_936L, "products.csv", 2_311L, "stores.csv", 3_120L);
 
   final Path estimate;
   final Path scenarios;
@@ -124,6 +132,14 @@ final class SyntheticRuns {
     m.put("convergence", Map.of("rhat_max_limit", 1.01, "ess_min_limit", 400.0));
     m.put("configuration", Map.of("sampler", Map.of("chains", CHAINS)));
     m.put("timings", Map.of("total_seconds", 12.5));
+    List<Map<String, Object>> files = new ArrayList<>();
+    INPUT_FILES.forEach((path, bytes) -> files.add(
+        Map.of("path", path, "bytes", bytes, "sha256", INPUT_SHA256.replace('3', 'f'))));
+    Map<String, Object> fingerprints = new LinkedHashMap<>();
+    fingerprints.put("algorithm", "SHA-256");
+    fingerprints.put("configuration_sha256", CONFIGURATION_SHA256);
+    fingerprints.put("inputs", Map.of("sha256", INPUT_SHA256, "files", files));
+    m.put("fingerprints", fingerprints);
     json(estimate, m);
   }
 
