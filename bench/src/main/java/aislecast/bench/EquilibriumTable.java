@@ -1,19 +1,9 @@
 package aislecast.bench;
 
 import aislecast.core.equilibrium.SolveInfo;
-import java.util.ArrayList;
-import java.util.Collection;
-import java.util.List;
 import java.util.concurrent.TimeUnit;
 import org.openjdk.jmh.annotations.Mode;
 import org.openjdk.jmh.results.Result;
-import org.openjdk.jmh.results.RunResult;
-import org.openjdk.jmh.runner.Runner;
-import org.openjdk.jmh.runner.RunnerException;
-import org.openjdk.jmh.runner.options.Options;
-import org.openjdk.jmh.runner.options.OptionsBuilder;
-import org.openjdk.jmh.runner.options.TimeValue;
-import org.openjdk.jmh.runner.options.VerboseMode;
 
 /**
  * Runs {@link EquilibriumBench} (1 fork, 3 warm-up and 5 measured iterations of 1 s each, single
@@ -47,30 +37,13 @@ public final class EquilibriumTable {
     int newtonIterations = probe.newtonIterations();
     System.out.println("Equilibrium benchmark: 1 fork, 3 x 1 s warm-up, 5 x 1 s measured per row,"
         + " one thread (about a minute) ...");
-    Options options = new OptionsBuilder()
-        .include(EquilibriumBench.class.getName() + "\\.")
-        .mode(Mode.Throughput)
-        .timeUnit(TimeUnit.SECONDS)
-        .forks(1)
-        .warmupIterations(3)
-        .warmupTime(TimeValue.seconds(1))
-        .measurementIterations(5)
-        .measurementTime(TimeValue.seconds(1))
-        .threads(1)
-        .verbosity(VerboseMode.SILENT)
-        .build();
-    Collection<RunResult> results = new Runner(options).run();
+    JmhTable results = JmhTable.run(EquilibriumBench.class, Mode.Throughput, TimeUnit.SECONDS);
     double[] cpuRate = cpuTimeRates(probe);
-    List<RunResult> list = new ArrayList<>(results);
-    if (list.isEmpty()) {
-      throw new RunnerException("JMH returned no results");
-    }
-    RunResult any = list.get(0);
     System.out.printf("%nR = %s shoppers, J = %s products, %s owners, Kx = %s; scenario: 5%% cut on"
         + " one product, the other %d re-set; %s %s, %d cores%n",
-        any.getParams().getParam("shoppers"), any.getParams().getParam("products"),
-        any.getParams().getParam("owners"), any.getParams().getParam("attributes"),
-        Integer.parseInt(any.getParams().getParam("products")) - 1,
+        results.param("shoppers"), results.param("products"),
+        results.param("owners"), results.param("attributes"),
+        Integer.parseInt(results.param("products")) - 1,
         System.getProperty("java.vm.name"), System.getProperty("java.vm.version"),
         Runtime.getRuntime().availableProcessors());
     System.out.printf("nash: %d zeta iterations, residual max|FOC|/s = %.2e; baseline: %d Newton"
@@ -81,7 +54,7 @@ public final class EquilibriumTable {
     double nash = Double.NaN;
     for (int i = 0; i < ROWS.length; i++) {
       String[] row = ROWS[i];
-      Result<?> res = find(list, row[0]);
+      Result<?> res = results.find(row[0]);
       if (res == null) {
         continue;
       }
@@ -140,14 +113,5 @@ public final class EquilibriumTable {
       System.out.println(sink); // keeps the calls alive
     }
     return rates;
-  }
-
-  private static Result<?> find(List<RunResult> list, String method) {
-    for (RunResult rr : list) {
-      if (rr.getParams().getBenchmark().endsWith("." + method)) {
-        return rr.getPrimaryResult();
-      }
-    }
-    return null;
   }
 }

@@ -2,20 +2,10 @@ package aislecast.bench;
 
 import java.nio.file.Files;
 import java.nio.file.Path;
-import java.util.ArrayList;
 import java.util.Arrays;
-import java.util.Collection;
-import java.util.List;
 import java.util.concurrent.TimeUnit;
 import org.openjdk.jmh.annotations.Mode;
 import org.openjdk.jmh.results.Result;
-import org.openjdk.jmh.results.RunResult;
-import org.openjdk.jmh.runner.Runner;
-import org.openjdk.jmh.runner.RunnerException;
-import org.openjdk.jmh.runner.options.Options;
-import org.openjdk.jmh.runner.options.OptionsBuilder;
-import org.openjdk.jmh.runner.options.TimeValue;
-import org.openjdk.jmh.runner.options.VerboseMode;
 
 /**
  * Runs {@link ShareKernelBench} (1 fork, 3 warm-up and 5 measured iterations of 1 s each, about
@@ -46,31 +36,13 @@ public final class KernelTable {
     }
     System.out.println("Share kernel benchmark: 1 fork, 3 x 1 s warm-up, 5 x 1 s measured per row"
         + " (about a minute) ...");
-    Options options = new OptionsBuilder()
-        .include(ShareKernelBench.class.getName() + "\\.")
-        .mode(Mode.AverageTime)
-        .timeUnit(TimeUnit.NANOSECONDS)
-        .forks(1)
-        .warmupIterations(3)
-        .warmupTime(TimeValue.seconds(1))
-        .measurementIterations(5)
-        .measurementTime(TimeValue.seconds(1))
-        .threads(1)
-        .verbosity(VerboseMode.SILENT)
-        .build();
-    Collection<RunResult> results = new Runner(options).run();
-    print(results);
+    print(JmhTable.run(ShareKernelBench.class, Mode.AverageTime, TimeUnit.NANOSECONDS));
   }
 
-  private static void print(Collection<RunResult> results) throws RunnerException {
-    List<RunResult> list = new ArrayList<>(results);
-    if (list.isEmpty()) {
-      throw new RunnerException("JMH returned no results");
-    }
-    RunResult any = list.get(0);
-    int r = Integer.parseInt(any.getParams().getParam("shoppers"));
-    int j = Integer.parseInt(any.getParams().getParam("products"));
-    int kx = Integer.parseInt(any.getParams().getParam("attributes"));
+  private static void print(JmhTable results) {
+    int r = Integer.parseInt(results.param("shoppers"));
+    int j = Integer.parseInt(results.param("products"));
+    int kx = Integer.parseInt(results.param("attributes"));
     double elements = (double) r * j;
     System.out.printf("%nR = %d shoppers, J = %d products, Kx = %d; %s %s, %s, %d cores%n", r, j, kx,
         System.getProperty("java.vm.name"), System.getProperty("java.vm.version"), cpuModel(),
@@ -79,7 +51,7 @@ public final class KernelTable {
     double naive = Double.NaN;
     double factored = Double.NaN;
     for (String[] row : ROWS) {
-      Result<?> res = find(list, row[0]);
+      Result<?> res = results.find(row[0]);
       if (res == null) {
         continue;
       }
@@ -98,16 +70,6 @@ public final class KernelTable {
     System.out.printf("(+- is JMH's 99.9%% confidence half-width; 'vs naive' is the speed-up.)%n");
     System.out.printf("Target for (c): at most %.1f ns per shopper-product: %s (%.3f)%n", TARGET_NS,
         factored <= TARGET_NS ? "met" : "MISSED", factored);
-  }
-
-  private static Result<?> find(List<RunResult> list, String method) {
-    for (RunResult rr : list) {
-      String label = rr.getParams().getBenchmark();
-      if (label.endsWith("." + method)) {
-        return rr.getPrimaryResult();
-      }
-    }
-    return null;
   }
 
   private static String cpuModel() {

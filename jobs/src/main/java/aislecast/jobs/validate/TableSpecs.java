@@ -42,11 +42,11 @@ final class TableSpecs {
   static TableSpec sales(RawTable raw, InputConfig.Sales cfg) {
     Builder b = new Builder(raw);
     InputConfig.SalesColumns c = cfg.columns();
-    b.require(c.storeId(), "store_id", FieldKind.KEY, "input.sales.columns.store_id");
-    b.require(c.week(), "week", FieldKind.WEEK, "input.sales.columns.week");
-    b.require(c.productId(), "product_id", FieldKind.KEY, "input.sales.columns.product_id");
-    b.require(c.units(), "units", FieldKind.UNITS, "input.sales.columns.units");
-    b.require(c.price(), "price", FieldKind.PRICE, "input.sales.columns.price");
+    b.column(c.storeId(), "store_id", FieldKind.KEY);
+    b.column(c.week(), "week", FieldKind.WEEK);
+    b.column(c.productId(), "product_id", FieldKind.KEY);
+    b.column(c.units(), "units", FieldKind.UNITS);
+    b.column(c.price(), "price", FieldKind.PRICE);
     b.listed(cfg.demandShifters(), InputConfig.Sales.DEFAULT_DEMAND_SHIFTERS, FieldKind.NUMBER,
         "input.sales.demand_shifters");
     b.listed(cfg.costShifters(), InputConfig.Sales.DEFAULT_COST_SHIFTERS,
@@ -56,48 +56,33 @@ final class TableSpecs {
 
   static TableSpec products(RawTable raw, InputConfig.Products cfg) {
     Builder b = new Builder(raw);
-    b.require(cfg.columns().productId(), "product_id", FieldKind.KEY,
-        "input.products.columns.product_id");
-    b.require(cfg.columns().owner(), "owner", FieldKind.KEY, "input.products.columns.owner");
-    if (cfg.attributes() == null) {
-      b.numericRest();
-    } else {
-      b.listed(cfg.attributes(), null, FieldKind.NUMBER, "input.products.attributes");
-    }
+    b.column(cfg.columns().productId(), "product_id", FieldKind.KEY);
+    b.column(cfg.columns().owner(), "owner", FieldKind.KEY);
+    b.listedOrNumericRest(cfg.attributes(), "input.products.attributes");
     return b.build();
   }
 
   static TableSpec stores(RawTable raw, InputConfig.Stores cfg) {
     Builder b = new Builder(raw);
-    b.require(cfg.columns().storeId(), "store_id", FieldKind.KEY,
-        "input.stores.columns.store_id");
-    b.require(cfg.columns().region(), "region", FieldKind.KEY, "input.stores.columns.region");
-    b.require(cfg.columns().shoppers(), "shoppers", FieldKind.MARKET_SIZE,
-        "input.stores.columns.shoppers");
-    if (cfg.demographics() == null) {
-      b.numericRest();
-    } else {
-      b.listed(cfg.demographics(), null, FieldKind.NUMBER, "input.stores.demographics");
-    }
+    b.column(cfg.columns().storeId(), "store_id", FieldKind.KEY);
+    b.column(cfg.columns().region(), "region", FieldKind.KEY);
+    b.column(cfg.columns().shoppers(), "shoppers", FieldKind.MARKET_SIZE);
+    b.listedOrNumericRest(cfg.demographics(), "input.stores.demographics");
     return b.build();
   }
 
   static TableSpec traffic(RawTable raw, InputConfig.Traffic cfg) {
     Builder b = new Builder(raw);
-    b.require(cfg.columns().storeId(), "store_id", FieldKind.KEY,
-        "input.traffic.columns.store_id");
-    b.require(cfg.columns().week(), "week", FieldKind.WEEK, "input.traffic.columns.week");
-    b.require(cfg.columns().shoppers(), "shoppers", FieldKind.MARKET_SIZE,
-        "input.traffic.columns.shoppers");
+    b.column(cfg.columns().storeId(), "store_id", FieldKind.KEY);
+    b.column(cfg.columns().week(), "week", FieldKind.WEEK);
+    b.column(cfg.columns().shoppers(), "shoppers", FieldKind.MARKET_SIZE);
     return b.build();
   }
 
   static TableSpec shopperDraws(RawTable raw, InputConfig.ShopperDraws cfg) {
     Builder b = new Builder(raw);
-    b.require(cfg.columns().storeId(), "store_id", FieldKind.KEY,
-        "input.shopper_draws.columns.store_id");
-    b.require(cfg.columns().draw(), "draw", FieldKind.DRAW_INDEX,
-        "input.shopper_draws.columns.draw");
+    b.column(cfg.columns().storeId(), "store_id", FieldKind.KEY);
+    b.column(cfg.columns().draw(), "draw", FieldKind.DRAW_INDEX);
     if (cfg.drawColumns() == null) {
       TreeMap<Integer, String> byIndex = new TreeMap<>();
       for (String name : b.types.keySet()) {
@@ -156,6 +141,20 @@ final class TableSpecs {
       }
       used.add(source);
       fields.add(new TableSpec.Field(name, source, kind));
+    }
+
+    /** A fixed field whose column is set by {@code input.<table>.columns.<name>}. */
+    void column(String source, String name, FieldKind kind) {
+      require(source, name, kind, "input." + raw.table() + ".columns." + name);
+    }
+
+    /** Numbers: the listed columns, or every other numeric column when there is no list. */
+    void listedOrNumericRest(List<String> explicit, String configKey) {
+      if (explicit == null) {
+        numericRest();
+      } else {
+        listed(explicit, null, FieldKind.NUMBER, configKey);
+      }
     }
 
     /** An explicit list must exist in full; an absent list uses the defaults that exist. */
