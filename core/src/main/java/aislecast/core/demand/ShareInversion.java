@@ -98,6 +98,54 @@ public final class ShareInversion {
     return new Result(res <= tol, it, res);
   }
 
+  /**
+   * The same root by the chord method: Newton steps that all use one fixed Jacobian {@code d0}
+   * of the shares (J x J, row-major, as from {@link ShareKernel#jacobianDelta}), taken where the
+   * shares equal {@code target}; for a nearby {@code v} this converges linearly at a rate set by
+   * how much the Jacobian moved, and each step costs one share evaluation instead of a new
+   * Jacobian and factorisation (Kelley 2003, Solving Nonlinear Equations with Newton's Method,
+   * section 1.8). Stops without converging when a step does not lower the residual; the caller
+   * then falls back to {@link #invert}.
+   */
+  public Result invertChord(int r, int j, double[] v, double[] target, double[] delta,
+      double[] d0, double tol, int maxIterations) {
+    if (j > maxProducts) {
+      throw new IllegalArgumentException("market has " + j + " products, buffers hold " + maxProducts);
+    }
+    kernel.prepare(r, j, v);
+    double res = residual(j, target, delta, false);
+    LinearSolverDense<DMatrixRMaj> solver = LinearSolverFactory_DDRM.lu(j);
+    jm.reshape(j, j);
+    rhs.reshape(j, 1);
+    step.reshape(j, 1);
+    for (int a = 0; a < j; a++) {
+      for (int b = 0; b < j; b++) {
+        jm.set(a, b, d0[a * j + b] / target[a]);
+      }
+    }
+    if (!solver.setA(jm)) {
+      return new Result(false, 0, res);
+    }
+    int it = 0;
+    while (res > tol && it < maxIterations) {
+      it++;
+      for (int a = 0; a < j; a++) {
+        rhs.set(a, 0, Math.log(s[a]) - Math.log(target[a]));
+      }
+      solver.solve(rhs, step);
+      for (int p = 0; p < j; p++) {
+        trial[p] = delta[p] - step.get(p, 0);
+      }
+      double next = residual(j, target, trial, false);
+      if (!(next < res)) {
+        return new Result(false, it, res);
+      }
+      System.arraycopy(trial, 0, delta, 0, j);
+      res = next;
+    }
+    return new Result(res <= tol, it, res);
+  }
+
   private double residual(int j, double[] target, double[] d, boolean keepProbs) {
     kernel.shares(d, s, probs);
     double worst = 0.0;

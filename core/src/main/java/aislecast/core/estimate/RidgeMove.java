@@ -72,6 +72,7 @@ public final class RidgeMove {
     double[] target = new double[jmax];
     double[] probs = new double[r * jmax];
     double[] jac = new double[jmax * jmax];
+    double[] start = new double[jmax];
     double[] dsum = new double[np];
     double[] dcount = new double[np];
     ShareInversion inversion = new ShareInversion(r, jmax);
@@ -99,7 +100,14 @@ public final class RidgeMove {
         }
         del[p] += mean / r;
       }
-      ShareInversion.Result res = inversion.invert(r, j, vNew, target, del, 1e-12, 100);
+      // the old point's Jacobian (needed for the log det anyway) drives chord steps; full
+      // Newton only if they stall (same root either way, to the same tolerance)
+      System.arraycopy(del, 0, start, 0, j);
+      ShareInversion.Result res = inversion.invertChord(r, j, vNew, target, del, jac, 1e-12, 30);
+      if (!res.converged()) {
+        System.arraycopy(start, 0, del, 0, j);
+        res = inversion.invert(r, j, vNew, target, del, 1e-12, 100);
+      }
       if (!res.converged()) {
         return Double.NaN;
       }

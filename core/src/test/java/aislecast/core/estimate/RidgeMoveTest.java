@@ -1,0 +1,149 @@
+package aislecast.core.estimate;
+
+import static org.junit.jupiter.api.Assertions.assertEquals;
+import static org.junit.jupiter.api.Assertions.assertTrue;
+
+import aislecast.core.demand.Heterogeneity;
+import aislecast.core.demand.ShareKernel;
+import aislecast.core.mcmc.StoreSampler;
+import aislecast.core.model.LocalParams;
+import aislecast.core.model.StoreData;
+import aislecast.core.rng.Streams;
+import aislecast.core.sim.SimSettings;
+import org.ejml.data.DMatrixRMaj;
+import org.ejml.dense.row.CommonOps_DDRM;
+import org.junit.jupiter.api.Test;
+
+/**
+ * The ridge move's map on one store's locals: shares kept, {@code -c} undoing {@code c}, and its
+ * log Jacobian against central finite differences of the map (common practice).
+ */
+class RidgeMoveTest {
+  private static final SimFixture FIX =
+      new SimFixture(SimSettings.demo().withSizes(3, 6, 5, 2, 2, 40));
+
+  private static double[] startingPosition(StoreData d) {
+    var g = FIX.truth;
+    LocalParams p = LocalParams.of(g.dims().kpsi(), g.gammaPsi(), g.vPsi(), g.kappabar(),
+        g.tau2(), g.gamma(), g.sigmaXi2(), g.pi0(), g.pi(), g.lambda(), g.sigmaP2());
+    StoreSampler sm = new StoreSampler(d, FIX.catalog.x(), FIX.catalog.attributes());
+    var rng = Streams.stream(3, 0, d.storeIndex);
+    return sm.natural(sm.init(rng, p, FIX.catalog.x(), FIX.catalog.attributes()).position);
+  }
+
+  private static double[] shift(int kpsi) {
+    double[] c = new double[kpsi];
+    for (int k = 0; k < kpsi; k++) {
+      c[k] = 0.05 * (k % 2 == 0 ? 1 : -1) / (1 + k);
+    }
+    return c;
+  }
+
+  @Test
+  void keepsSharesAndTheOppositeShiftUndoesIt() {
+    StoreData d = FIX.stores.get(0);
+    int kx = FIX.catalog.attributes();
+    double[] x = FIX.catalog.x();
+    double[] pos = startingPosition(d);
+    double[] c = shift(Heterogeneity.dim(kx));
+    double[] moved = pos.clone();
+    double there = RidgeMove.apply(d, x, kx, moved, c);
+    StoreSampler sm = new StoreSampler(d, x, kx);
+    assertEquals(sm.salesLogLikelihood(pos), sm.salesLogLikelihood(moved), 1e-8,
+        "predicted shares, hence the sales likelihood, are unchanged");
+    double[] back = moved.clone();
+    double[] minus = c.clone();
+    for (int k = 0; k < minus.length; k++) {
+      minus[k] = -minus[k];
+    }
+    double backJac = RidgeMove.apply(d, x, kx, back, minus);
+    for (int i = 0; i < pos.length; i++) {
+      assertEquals(pos[i], back[i], 1e-9, "coordinate " + i);
+    }
+    assertEquals(0.0, there + backJac, 1e-8, "log Jacobians of a map and its inverse cancel");
+  }
+
+  @Test
+  void logJacobianMatchesFiniteDifferencesOfTheMap() {
+    StoreData d = FIX.stores.get(1);
+    int kx = FIX.catalog.attributes();
+    int kpsi = Heterogeneity.dim(kx);
+    double[] x = FIX.catalog.x();
+    double[] pos = startingPosition(d);
+    double[] c = shift(kpsi);
+    int off = kpsi + d.products.length;
+    double total = 0;
+    double fromApply = RidgeMove.apply(d, x, kx, pos.clone(), c);
+    double h = 1e-5;
+    for (int t = 0; t < d.markets(); t++) {
+      int a = d.rowStart[t];
+      int j = d.rowStart[t + 1] - a;
+      // d delta'_t / d delta_t by central differences; other markets do not enter market t
+      DMatrixRMaj num = new DMatrixRMaj(j, j);
+      for (int q = 0; q < j; q++) {
+        double[] up = pos.clone();
+        double[] down = pos.clone();
+        up[off + a + q] += h;
+        down[off + a + q] -= h;
+        RidgeMove.apply(d, x, kx, up, c);
+        RidgeMove.apply(d, x, kx, down, c);
+        for (int p = 0; p < j; p++) {
+          num.set(p, q, (up[off + a + p] - down[off + a + p]) / (2 * h));
+        }
+      }
+      total += Math.log(Math.abs(CommonOps_DDRM.det(num)));
+    }
+    assertEquals(total, fromApply, 1e-5 * Math.max(1, Math.abs(total)),
+        "sum over markets of log |det d delta'/d delta|");
+    assertTrue(Math.abs(total) > 1e-4, "the shift must change the Jacobian for this to test it");
+  }
+
+  @Test
+  void chordAndNewtonFindTheSameRoot() {
+    StoreData d = FIX.stores.get(2);
+    int kx = FIX.catalog.attributes();
+    int kpsi = Heterogeneity.dim(kx);
+    double[] x = FIX.catalog.x();
+    double[] pos = startingPosition(d);
+    double[] psiNew = java.util.Arrays.copyOf(pos, kpsi);
+    double[] c = shift(kpsi);
+    for (int k = 0; k < kpsi; k++) {
+      psiNew[k] += c[k];
+    }
+    int r = d.shoppers;
+    int jCat = x.length / kx;
+    double[] alpha = new double[r];
+    double[] mu = new double[r * jCat];
+    double[] alphaNew = new double[r];
+    double[] muNew = new double[r * jCat];
+    Heterogeneity.shopperTastes(pos, kx, d.nu, r, x, jCat, alpha, mu);
+    Heterogeneity.shopperTastes(psiNew, kx, d.nu, r, x, jCat, alphaNew, muNew);
+    int off = kpsi + d.products.length;
+    int a = d.rowStart[0];
+    int j = d.rowStart[1] - a;
+    double[] vOld = new double[r * j];
+    double[] vNew = new double[r * j];
+    for (int i = 0; i < r; i++) {
+      for (int p = 0; p < j; p++) {
+        int prod = d.product[a + p];
+        vOld[i * j + p] = mu[i * jCat + prod] - alpha[i] * d.price[a + p];
+        vNew[i * j + p] = muNew[i * jCat + prod] - alphaNew[i] * d.price[a + p];
+      }
+    }
+    double[] del = java.util.Arrays.copyOfRange(pos, off + a, off + a + j);
+    double[] target = new double[j];
+    double[] probs = new double[r * j];
+    double[] jac = new double[j * j];
+    ShareKernel.shares(r, j, del, vOld, target, probs);
+    ShareKernel.jacobianDelta(r, j, probs, jac);
+    var inv = new aislecast.core.demand.ShareInversion(r, j);
+    double[] chord = del.clone();
+    double[] newton = del.clone();
+    var rc = inv.invertChord(r, j, vNew, target, chord, jac, 1e-12, 30);
+    var rn = inv.invert(r, j, vNew, target, newton, 1e-12, 100);
+    assertTrue(rc.converged() && rn.converged(), rc + " " + rn);
+    for (int p = 0; p < j; p++) {
+      assertEquals(newton[p], chord[p], 1e-10, "product " + p);
+    }
+  }
+}
