@@ -50,15 +50,8 @@ public final class ShareInversion {
    */
   public Result invert(int r, int j, double[] v, double[] target, double[] delta, double tol,
       int maxIterations) {
-    if (j > maxProducts) {
-      throw new IllegalArgumentException("market has " + j + " products, buffers hold " + maxProducts);
-    }
-    kernel.prepare(r, j, v);
+    LinearSolverDense<DMatrixRMaj> solver = begin(r, j, v);
     double res = residual(j, target, delta, true);
-    LinearSolverDense<DMatrixRMaj> solver = LinearSolverFactory_DDRM.lu(j);
-    jm.reshape(j, j);
-    rhs.reshape(j, 1);
-    step.reshape(j, 1);
     int it = 0;
     while (res > tol && it < maxIterations) {
       it++;
@@ -109,15 +102,8 @@ public final class ShareInversion {
    */
   public Result invertChord(int r, int j, double[] v, double[] target, double[] delta,
       double[] d0, double tol, int maxIterations) {
-    if (j > maxProducts) {
-      throw new IllegalArgumentException("market has " + j + " products, buffers hold " + maxProducts);
-    }
-    kernel.prepare(r, j, v);
-    double res = residual(j, target, delta, false);
-    LinearSolverDense<DMatrixRMaj> solver = LinearSolverFactory_DDRM.lu(j);
-    jm.reshape(j, j);
-    rhs.reshape(j, 1);
-    step.reshape(j, 1);
+    LinearSolverDense<DMatrixRMaj> solver = begin(r, j, v);
+    double res = residual(j, target, delta, true);
     for (int a = 0; a < j; a++) {
       for (int b = 0; b < j; b++) {
         jm.set(a, b, d0[a * j + b] / target[a]);
@@ -144,6 +130,18 @@ public final class ShareInversion {
       res = next;
     }
     return new Result(res <= tol, it, res);
+  }
+
+  /** Checks the size, prepares the kernel for {@code v} and sizes the buffers; a fresh solver. */
+  private LinearSolverDense<DMatrixRMaj> begin(int r, int j, double[] v) {
+    if (j > maxProducts) {
+      throw new IllegalArgumentException("market has " + j + " products, buffers hold " + maxProducts);
+    }
+    kernel.prepare(r, j, v);
+    jm.reshape(j, j);
+    rhs.reshape(j, 1);
+    step.reshape(j, 1);
+    return LinearSolverFactory_DDRM.lu(j);
   }
 
   private double residual(int j, double[] target, double[] d, boolean keepProbs) {
