@@ -9,6 +9,7 @@ import aislecast.core.globals.GlobalStats;
 import aislecast.core.globals.Globals;
 import aislecast.core.globals.HierarchyStats;
 import aislecast.core.globals.InterceptStats;
+import aislecast.core.globals.InvGamma;
 import aislecast.core.globals.Normal;
 import aislecast.core.globals.Priors;
 import aislecast.core.globals.RegressionStats;
@@ -29,7 +30,9 @@ import aislecast.core.model.StoreData;
  * map's Jacobian (Green 1995's deterministic-map form), returned by {@link #apply}.
  * That ratio is taken with {@code Gamma}, {@code kappabar} and the price equation's coefficients
  * integrated out (each Gaussian given the other globals, so the integral is exact by Chib's
- * identity), and those are then drawn from their conditionals given the chosen locals: a
+ * identity), and the demand shocks' variance {@code sigma_xi^2} integrated out too (its
+ * inverse-gamma prior is conjugate to the shocks), and those are then drawn from their
+ * conditionals given the chosen locals, before anything that conditions on them: a
  * partially collapsed Gibbs step in the sense of van Dyk and Park (2008, JASA 103), valid because
  * the collapsed block is redrawn right after the collapsed move.
  */
@@ -177,9 +180,10 @@ public final class RidgeMove {
   /**
    * Log of the collapsed posterior of the locals summarised by {@code s}, up to terms that do
    * not change under the move (the sales likelihood is added separately): the psi hierarchy with
-   * Gamma integrated out given V_psi, the intercepts with kappabar integrated out given tau^2, and
-   * the xi and price-equation terms with (pi0, pi, lambda) integrated out given gamma, sigma_xi^2
-   * and sigma_p^2 (lambda held at its value when {@code fixedLambda}).
+   * Gamma integrated out given V_psi, the intercepts with kappabar integrated out given tau^2, the
+   * xi term with sigma_xi^2 integrated out given gamma, and the price-equation term with (pi0, pi,
+   * lambda) integrated out given gamma and sigma_p^2 (lambda held at its value when {@code
+   * fixedLambda}).
    */
   public static double collapsedLogDensity(Globals g, GlobalStats s, Priors priors,
       boolean fixedLambda) {
@@ -234,7 +238,8 @@ public final class RidgeMove {
 
   static double regression(Globals g, RegressionStats s, Priors priors, boolean fixedLambda) {
     double n = s.n();
-    double demand = -0.5 * n * Math.log(2 * Math.PI * g.sigmaXi2())
+    double demand = collapseNoiseVariance ? collapsedDemand(g, s, priors)
+        : -0.5 * n * Math.log(2 * Math.PI * g.sigmaXi2())
         - 0.5 * GlobalGibbs.demandResidualSquares(g, s) / g.sigmaXi2();
     int j = s.products();
     int kc = s.kc();
@@ -259,6 +264,31 @@ public final class RidgeMove {
       prior += normal(lambda, priors.lambda().mean(), priors.lambda().var());
     }
     return demand + price + prior - cond.logDensityAtMean();
+  }
+
+  /**
+   * Whether the demand term integrates sigma_xi^2 out (the default). Only the in-process probes
+   * switch it off, to measure what the collapse buys.
+   */
+  static volatile boolean collapseNoiseVariance = true;
+
+  /**
+   * {@code log prod_t N(xi_t; 0, s2)} integrated over {@code s2 ~ Inv-Gamma(a, b)}: {@code a log b
+   * - log Gamma(a) + log Gamma(a + n/2) - (a + n/2) log(b + xi'xi/2) - (n/2) log(2 pi)} (the
+   * normal-inverse-gamma marginal, Gelman et al., BDA3, section 3.3).
+   */
+  static double collapsedDemand(Globals g, RegressionStats s, Priors priors) {
+    return normalInvGammaMarginal(s.n(), GlobalGibbs.demandResidualSquares(g, s),
+        priors.sigmaXi2());
+  }
+
+  /** {@code log int prod_{i<=n} N(y_i; 0, v) InvGamma(v; prior) dv} with {@code ss = sum y_i^2}. */
+  static double normalInvGammaMarginal(double n, double ss, InvGamma prior) {
+    double a = prior.shape();
+    double b = prior.scale();
+    return a * Math.log(b) - org.apache.commons.math3.special.Gamma.logGamma(a)
+        + org.apache.commons.math3.special.Gamma.logGamma(a + 0.5 * n)
+        - (a + 0.5 * n) * Math.log(b + 0.5 * ss) - 0.5 * n * Math.log(2 * Math.PI);
   }
 
   private static double normal(double y, double m, double v) {

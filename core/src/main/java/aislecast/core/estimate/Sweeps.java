@@ -211,7 +211,8 @@ public final class Sweeps {
 
   /**
    * Globals from their conditionals, the ridge move's collapsed block (Gamma | V, kappabar |
-   * tau2, price-equation coefficients | rest) first, then V_psi, tau2, gamma, sigma_p2, sigma_xi2.
+   * tau2, price-equation coefficients | rest, sigma_xi2 | gamma) first, then V_psi, tau2, gamma,
+   * sigma_p2.
    */
   static Globals drawGlobals(Globals g, GlobalStats s, Priors priors, boolean fixedLambda,
       SplitMix64 rng) {
@@ -220,10 +221,10 @@ public final class Sweeps {
     g = fixedLambda
         ? GlobalGibbs.drawPriceEquationFixedLambda(g, s.regression(), priors, rng)
         : GlobalGibbs.drawPriceEquation(g, s.regression(), priors, rng);
+    g = GlobalGibbs.drawSigmaXi2(g, s.regression(), priors, rng);
     g = GlobalGibbs.drawVPsi(g, s.hierarchy(), priors, rng);
     g = GlobalGibbs.drawTau2(g, s.intercepts(), priors, rng);
     g = GlobalGibbs.drawGamma(g, s.regression(), priors, rng);
-    g = GlobalGibbs.drawSigmaP2(g, s.regression(), priors, rng);
-    return GlobalGibbs.drawSigmaXi2(g, s.regression(), priors, rng);
+    return GlobalGibbs.drawSigmaP2(g, s.regression(), priors, rng);
   }
 }

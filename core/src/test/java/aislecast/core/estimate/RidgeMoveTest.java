@@ -146,4 +146,35 @@ class RidgeMoveTest {
       assertEquals(newton[p], chord[p], 1e-10, "product " + p);
     }
   }
+
+  /**
+   * The ridge target's demand term with sigma_xi^2 integrated out, against numerical quadrature of
+   * {@code int prod N(y_i; 0, v) InvGamma(v; a, b) dv} over {@code u = log v} (commons-math3's
+   * iterative Legendre-Gauss integrator; the closed form is the normal-inverse-gamma marginal,
+   * Gelman et al., BDA3, section 3.3).
+   */
+  @Test
+  void integratedNoiseVarianceMatchesQuadrature() {
+    var prior = new aislecast.core.globals.InvGamma(2.0, 0.5);
+    double[][] cases = {{7, 3.2}, {50, 2.9}, {400, 21.0}};
+    for (double[] c : cases) {
+      double n = c[0];
+      double ss = c[1];
+      double closed = RidgeMove.normalInvGammaMarginal(n, ss, prior);
+      // integrand relative to exp(closed) so it stays near 1 where it matters
+      org.apache.commons.math3.analysis.UnivariateFunction f = u -> {
+        double v = Math.exp(u);
+        double logLik = -0.5 * n * Math.log(2 * Math.PI * v) - 0.5 * ss / v;
+        double logPrior = prior.shape() * Math.log(prior.scale())
+            - org.apache.commons.math3.special.Gamma.logGamma(prior.shape())
+            - (prior.shape() + 1) * Math.log(v) - prior.scale() / v;
+        return Math.exp(logLik + logPrior + u - closed);
+      };
+      var quad = new org.apache.commons.math3.analysis.integration.IterativeLegendreGaussIntegrator(
+          32, 1e-12, 1e-14);
+      double mode = Math.log((prior.scale() + 0.5 * ss) / (prior.shape() + 0.5 * n + 1));
+      double ratio = quad.integrate(1_000_000, f, mode - 12, mode + 12);
+      assertEquals(1.0, ratio, 1e-9, "n = " + n + ", ss = " + ss);
+    }
+  }
 }
