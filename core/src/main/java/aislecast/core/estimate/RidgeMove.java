@@ -30,8 +30,10 @@ import aislecast.core.model.StoreData;
  * map's Jacobian (Green 1995's deterministic-map form), returned by {@link #apply}.
  * That ratio is taken with {@code Gamma}, {@code kappabar} and the price equation's coefficients
  * integrated out (each Gaussian given the other globals, so the integral is exact by Chib's
- * identity), and the demand shocks' variance {@code sigma_xi^2} integrated out too (its
- * inverse-gamma prior is conjugate to the shocks), and those are then drawn from their
+ * identity), the demand shocks' variance {@code sigma_xi^2} integrated out too (its
+ * inverse-gamma prior is conjugate to the shocks), and the price noise variance {@code sigma_p^2}
+ * by one-dimensional quadrature ({@link aislecast.core.globals.PriceNoiseMarginal}); those are
+ * then drawn from their
  * conditionals given the chosen locals, before anything that conditions on them: a
  * partially collapsed Gibbs step in the sense of van Dyk and Park (2008, JASA 103), valid because
  * the collapsed block is redrawn right after the collapsed move.
@@ -182,7 +184,7 @@ public final class RidgeMove {
    * not change under the move (the sales likelihood is added separately): the psi hierarchy with
    * Gamma integrated out given V_psi, the intercepts with kappabar integrated out given tau^2, the
    * xi term with sigma_xi^2 integrated out given gamma, and the price-equation term with (pi0, pi,
-   * lambda) integrated out given gamma and sigma_p^2 (lambda held at its value when {@code
+   * lambda) and sigma_p^2 integrated out given gamma (lambda held at its value when {@code
    * fixedLambda}).
    */
   public static double collapsedLogDensity(Globals g, GlobalStats s, Priors priors,
@@ -241,6 +243,10 @@ public final class RidgeMove {
     double demand = collapseNoiseVariance ? collapsedDemand(g, s, priors)
         : -0.5 * n * Math.log(2 * Math.PI * g.sigmaXi2())
         - 0.5 * GlobalGibbs.demandResidualSquares(g, s) / g.sigmaXi2();
+    if (collapsePriceNoise) {
+      return demand + aislecast.core.globals.PriceNoiseMarginal.of(g, s, priors, fixedLambda)
+          .logMarginal(priors.sigmaP2());
+    }
     int j = s.products();
     int kc = s.kc();
     Gaussian cond = fixedLambda
@@ -271,6 +277,12 @@ public final class RidgeMove {
    * switch it off, to measure what the collapse buys.
    */
   static volatile boolean collapseNoiseVariance = true;
+
+  /**
+   * Whether the price term integrates sigma_p^2 out as well (the default, see {@link
+   * aislecast.core.globals.PriceNoiseMarginal}). Only the in-process probes switch it off.
+   */
+  static volatile boolean collapsePriceNoise = true;
 
   /**
    * {@code log prod_t N(xi_t; 0, s2)} integrated over {@code s2 ~ Inv-Gamma(a, b)}: {@code a log b

@@ -210,14 +210,20 @@ public final class Sweeps {
   }
 
   /**
-   * Globals from their conditionals, the ridge move's collapsed block (Gamma | V, kappabar |
-   * tau2, price-equation coefficients | rest, sigma_xi2 | gamma) first, then V_psi, tau2, gamma,
-   * sigma_p2.
+   * Globals from their conditionals, the ridge move's collapsed block first (Gamma | V, kappabar |
+   * tau2, sigma_p2 | gamma with the price-equation coefficients integrated out, those
+   * coefficients | sigma_p2, sigma_xi2 | gamma: given the locals and gamma the four are
+   * independent, so this is one joint draw), then V_psi, tau2, gamma, and sigma_p2 again from its
+   * full conditional.
    */
   static Globals drawGlobals(Globals g, GlobalStats s, Priors priors, boolean fixedLambda,
       SplitMix64 rng) {
     g = GlobalGibbs.drawGammaPsi(g, s.hierarchy(), priors, rng);
     g = GlobalGibbs.drawKappabar(g, s.intercepts(), priors, rng);
+    if (RidgeMove.collapsePriceNoise) {
+      g = g.withSigmaP2(aislecast.core.globals.PriceNoiseMarginal
+          .of(g, s.regression(), priors, fixedLambda).draw(priors.sigmaP2(), rng));
+    }
     g = fixedLambda
         ? GlobalGibbs.drawPriceEquationFixedLambda(g, s.regression(), priors, rng)
         : GlobalGibbs.drawPriceEquation(g, s.regression(), priors, rng);

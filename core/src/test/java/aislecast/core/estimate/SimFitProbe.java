@@ -70,6 +70,7 @@ public final class SimFitProbe {
     int leapfrog = Integer.parseInt(System.getenv().getOrDefault("LF", "16"));
     var set = new SamplerSettings(4, warm, keep, local, leapfrog, 0.8, Long.parseLong(System.getenv().getOrDefault("SEED", "11")), false, !"0".equals(System.getenv("RIDGE")));
     RidgeMove.collapseNoiseVariance = !"0".equals(System.getenv("COLLAPSE_XI"));
+    RidgeMove.collapsePriceNoise = !"0".equals(System.getenv("COLLAPSE_P"));
     long t0 = System.nanoTime();
     var res = InProcessRunner.run(f.stores, f.catalog, 2, 1, 1, Priors.defaults(2, 3), set);
     System.out.printf("%.1f s%n", (System.nanoTime() - t0) / 1e9);

@@ -39,7 +39,7 @@ class ConditionalsTest {
   private static final Dims DIMS = new Dims(KD, KPSI, J, KZ, KC);
 
   /** Non-default priors with non-zero means, so every prior term is exercised. */
-  private static final Priors PRIORS =
+  static final Priors PRIORS =
       new Priors(
           KD, KPSI, Priors.defaults(KD, 1).gammaPsiMean(), new double[] {4, 1, 2, 9, 3, 5},
           new InvWishart(7.0, new double[] {0.8, 0.1, 0, 0.1, 0.6, 0.05, 0, 0.05, 0.5}, KPSI),
@@ -47,7 +47,7 @@ class ConditionalsTest {
           new Normal(0.5, 2.0), new Normal(-0.2, 3.0), new Normal(0.1, 0.5),
           new InvGamma(2.5, 0.4), new InvGamma(3.5, 0.3));
 
-  private static final Globals CURRENT =
+  static final Globals CURRENT =
       new Globals(
           DIMS, new double[] {0.2, -0.9, -1.1, 0.1, 0.3, -0.2},
           new double[] {0.5, 0.1, 0.0, 0.1, 0.4, -0.05, 0.0, -0.05, 0.3},
