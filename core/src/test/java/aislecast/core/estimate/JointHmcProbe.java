@@ -36,7 +36,9 @@ import java.util.List;
  *
  * <p>Arguments: stores weeks products warmup keep draws; env LF, SEED, JLF (leapfrog steps of the joint
  * move, default LF), JOINT=0 to switch the joint move off (same loop otherwise), GAMMA_MASS=history (Gamma's inverse mass from the spread of its
- * warmup draws, default), ridge (from the ridge proposal's per-axis variance) or 0 (Gamma held).
+ * warmup draws, default), ridge (from the ridge proposal's per-axis variance) or 0 (Gamma held);
+ * FIXV=1 holds V_psi at each chain's value of sweep 50 (a diagnostic: the conditional posterior
+ * given V_psi).
  */
 public final class JointHmcProbe {
   static final class Joint implements Target {
@@ -232,6 +234,8 @@ public final class JointHmcProbe {
     int acceptN = 0;
     long t0 = System.nanoTime();
     boolean checked = false;
+    boolean fixV = "1".equals(System.getenv("FIXV"));
+    double[][] heldV = new double[4][];
     for (int sweep = 0; sweep < set.totalSweeps(); sweep++) {
       SweepInput in = Sweeps.input(st, set);
       SweepStats stats = new SweepStats(dims, 4);
@@ -241,6 +245,18 @@ public final class JointHmcProbe {
         stats.merge(part);
       }
       st = Sweeps.driverStep(st, stats, in, priors, set);
+      if (fixV && sweep >= 50) {
+        // diagnostic: hold V_psi at each chain's value of sweep 50 (a conditional posterior)
+        Globals[] gs = st.globals().clone();
+        for (int c = 0; c < 4; c++) {
+          if (heldV[c] == null) {
+            heldV[c] = gs[c].vPsi();
+          }
+          gs[c] = gs[c].withVPsi(heldV[c]);
+        }
+        st = new DriverState(gs, st.ridgeScale(), st.ridgeChol(), st.ridgeHistory(),
+            st.pendingShift(), st.ridgeAccepted(), st.ridgeProposed(), st.nextSweep());
+      }
       if (joint && sweep >= 20) {
         Globals[] gs = st.globals().clone();
         double[][] pending = st.pendingShift().clone();
