@@ -16,14 +16,15 @@ import aislecast.core.globals.RegressionStats;
 import aislecast.core.model.StoreData;
 
 /**
- * A joint move along the slowest direction of the posterior: every store's log price sensitivity
- * {@code a_s} shifts by the same {@code c}, each market's mean utilities are re-inverted so that
+ * A joint move along the slowest direction of the posterior: every store's heterogeneity vector
+ * {@code psi_s} shifts by the same {@code c}, each market's mean utilities are re-inverted so that
  * its predicted shares stay exactly as they were, and each store-product intercept follows its
- * products' mean utility change (so {@code xi} barely moves). Without it, a Gibbs sweep between globals and locals crawls: given
+ * products' mean utility change (so {@code xi} barely moves). Without it, a Gibbs sweep between
+ * globals and locals crawls: given
  * the locals the price equation pins {@code lambda} and the intercept means far tighter than
  * their posterior spread, and given those the locals are pinned too.
  *
- * <p>Exactness: for a fixed {@code c} the map shifts {@code a}, maps {@code delta} to the
+ * <p>Exactness: for a fixed {@code c} the map shifts {@code psi}, maps {@code delta} to the
  * {@code delta'} with {@code s(delta'; psi') = s(delta; psi)} and shifts {@code kappa} by an
  * amount that depends only on (psi, delta); the map for {@code -c} inverts the one for {@code c},
  * so with {@code c ~ N(0, s^2)} the Metropolis-Hastings ratio is the posterior ratio times the
@@ -33,8 +34,8 @@ import aislecast.core.model.StoreData;
  * identity), the demand shocks' variance {@code sigma_xi^2} integrated out too (its
  * inverse-gamma prior is conjugate to the shocks), and the price noise variance {@code sigma_p^2}
  * by one-dimensional quadrature ({@link aislecast.core.globals.PriceNoiseMarginal}); those are
- * then drawn from their
- * conditionals given the chosen locals, before anything that conditions on them: a
+ * then drawn from their conditionals given the chosen locals, before anything that conditions on
+ * them: a
  * partially collapsed Gibbs step in the sense of van Dyk and Park (2008, JASA 103), valid because
  * the collapsed block is redrawn right after the collapsed move.
  */

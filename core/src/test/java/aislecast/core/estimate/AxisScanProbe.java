@@ -13,26 +13,9 @@ import aislecast.core.sim.SimSettings;
  * move's target narrow in which direction.
  */
 public final class AxisScanProbe {
-  /** log of the integral over sigma_p2 of exp(regression term without demand) times its prior. */
+  /** The price-equation term with its coefficients and sigma_p2 integrated out. */
   static double integratedSp(aislecast.core.globals.Globals g, aislecast.core.globals.GlobalStats st, Priors pr) {
-    double base = g.sigmaP2();
-    double[] vals = new double[801];
-    double max = -1e300;
-    var ig = pr.sigmaP2();
-    for (int k = 0; k <= 800; k++) {
-      double u = -0.4 + 0.001 * k;
-      double s2 = base * Math.exp(u);
-      var gg = g.withSigmaP2(s2);
-      double v = RidgeMove.regression(gg, st.regression(), pr, false) - RidgeMove.collapsedDemand(gg, st.regression(), pr);
-      if (!RidgeMove.collapseNoiseVariance) v = RidgeMove.regression(gg, st.regression(), pr, false) + 0.5 * st.regression().n() * Math.log(2 * Math.PI * gg.sigmaXi2()) + 0.5 * GlobalGibbs.demandResidualSquares(gg, st.regression()) / gg.sigmaXi2();
-      // inverse-gamma prior density in s2 times ds2 = s2 du
-      v += ig.shape() * Math.log(ig.scale()) - org.apache.commons.math3.special.Gamma.logGamma(ig.shape()) - (ig.shape() + 1) * Math.log(s2) - ig.scale() / s2 + Math.log(s2);
-      vals[k] = v;
-      max = Math.max(max, v);
-    }
-    double sum = 0;
-    for (double v : vals) sum += Math.exp(v - max);
-    return max + Math.log(sum * 0.001);
+    return aislecast.core.globals.PriceNoiseMarginal.of(g, st.regression(), pr, false).logMarginal(pr.sigmaP2());
   }
 
   public static void main(String[] args) throws Exception {
@@ -41,6 +24,8 @@ public final class AxisScanProbe {
     var set = new SamplerSettings(1, 150, 10, 1, 8, 0.8, 11, false, true);
     Priors pr = Priors.defaults(2, 3);
     var res = InProcessRunner.run(f.stores, f.catalog, 2, 1, 1, pr, set);
+    // the "price" column is the term at the chain's sigma_p2; the integrated one is printed apart
+    RidgeMove.collapsePriceNoise = false;
     var g = res.last().globals()[0];
     int kpsi = res.dims().kpsi();
     double[] x = f.catalog.x();
