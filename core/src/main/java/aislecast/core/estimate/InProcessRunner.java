@@ -8,6 +8,7 @@ import aislecast.core.model.ProductCatalog;
 import aislecast.core.model.StoreData;
 import java.util.ArrayList;
 import java.util.List;
+import java.util.function.Function;
 
 /**
  * The estimation sweep loop in one JVM without Spark: the same {@link Sweeps} functions the Spark
@@ -23,15 +24,45 @@ public final class InProcessRunner {
 
   public static Result run(List<StoreData> stores, ProductCatalog catalog, int kd, int kz,
       int kc, Priors priors, SamplerSettings set) {
+    return run(stores, catalog, kd, kz, kc, priors, set, Start.DEFAULT);
+  }
+
+  /**
+   * Diagnostic starts and holds for the probes: every chain's globals, each store's locals in
+   * natural coordinates [psi, kappa, delta] (the same for every chain), whether the globals stay
+   * where they started (only the locals are sampled: a conditional posterior), and a hook called
+   * after each sweep with the sweep index, the blocks and their samplers.
+   */
+  public record Start(Globals[] globals, Function<StoreData, double[]> locals,
+      boolean holdGlobals, SweepHook afterSweep) {
+    static final Start DEFAULT = new Start(null, null, false, null);
+  }
+
+  /** Called after each sweep (see {@link Start}). */
+  public interface SweepHook {
+    void accept(int sweep, List<StoreBlock> blocks, List<StoreSampler> samplers, DriverState st);
+  }
+
+  public static Result run(List<StoreData> stores, ProductCatalog catalog, int kd, int kz,
+      int kc, Priors priors, SamplerSettings set, Start start) {
     int kx = catalog.attributes();
     Dims dims = new Dims(kd, aislecast.core.demand.Heterogeneity.dim(kx), catalog.size(), kz, kc);
-    DriverState st = DriverState.start(InitialGlobals.of(stores, dims, kx, set));
+    DriverState st = DriverState.start(start.globals() != null ? start.globals()
+        : InitialGlobals.of(stores, dims, kx, set));
     List<StoreBlock> blocks = new ArrayList<>();
     List<StoreSampler> samplers = new ArrayList<>();
     var params0 = Sweeps.localParams(st.globals());
     for (StoreData d : stores) {
-      blocks.add(Sweeps.initStore(d, catalog.x(), kx, params0, set));
-      samplers.add(new StoreSampler(d, catalog.x(), kx));
+      StoreBlock b = Sweeps.initStore(d, catalog.x(), kx, params0, set);
+      StoreSampler sampler = new StoreSampler(d, catalog.x(), kx);
+      if (start.locals() != null) {
+        double[] pos = sampler.fromNatural(start.locals().apply(d));
+        for (var chain : b.chains) {
+          chain.position = pos.clone();
+        }
+      }
+      blocks.add(b);
+      samplers.add(sampler);
     }
     double[][][] kept = new double[set.chains()][set.samplingSweeps()][];
     double acceptSum = 0;
@@ -43,7 +74,12 @@ public final class InProcessRunner {
         Sweeps.sweepStore(blocks.get(i), samplers.get(i), catalog.x(), kx, in, set, sweep, part);
         stats.merge(part);
       }
-      st = Sweeps.driverStep(st, stats, in, priors, set);
+      if (!start.holdGlobals()) {
+        st = Sweeps.driverStep(st, stats, in, priors, set);
+      }
+      if (start.afterSweep() != null) {
+        start.afterSweep().accept(sweep, blocks, samplers, st);
+      }
       if (sweep >= set.warmupSweeps()) {
         acceptSum += stats.meanAcceptance();
         for (int c = 0; c < set.chains(); c++) {

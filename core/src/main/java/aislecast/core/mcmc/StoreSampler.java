@@ -113,6 +113,13 @@ public final class StoreSampler {
   }
 
   /**
+   * Probe switch (diagnostics only, never set by the product): psi keeps its value, its inverse
+   * mass set to 1e-300 so the HMC trajectory moves it by nothing; the rest of the locals are then
+   * sampled from their conditional given psi.
+   */
+  public static volatile boolean holdPsi = false;
+
+  /**
    * One local transition (HMC on (psi, delta), then Gibbs on kappa), updating {@code s} in place.
    *
    * @param warmup whether this transition adapts the tuning
@@ -124,7 +131,12 @@ public final class StoreSampler {
     double eps = adapting ? s.stepAdapt.stepSize() : s.stepSize;
     // jitter the step size by +-10% so trajectories don't resonate (Neal 2011, section 5.4.2.2)
     eps *= 0.9 + 0.2 * rng.nextDouble();
-    Hmc.Step st = Hmc.step(rng, state, target, eps, s.invMass, set.leapfrogSteps());
+    double[] im = s.invMass;
+    if (holdPsi) {
+      im = im.clone();
+      java.util.Arrays.fill(im, 0, kpsi, 1e-300);
+    }
+    Hmc.Step st = Hmc.step(rng, state, target, eps, im, set.leapfrogSteps());
     s.position = st.state().position();
     s.logDensity = st.state().logDensity();
     // Gibbs on kappa given (psi, delta): in sampler coordinates kt = kappa + gbar(psi), a

@@ -2,6 +2,7 @@ package aislecast.core.estimate;
 
 import aislecast.core.diag.Diagnostics;
 import aislecast.core.globals.Priors;
+import aislecast.core.globals.Globals;
 import aislecast.core.sim.SimSettings;
 
 /**
@@ -57,6 +58,106 @@ public final class SimFitProbe {
     }
   }
 
+  /** The simulation's true natural locals [psi, kappa, delta] of one store. */
+  static double[] truthLocals(SimFixture f, aislecast.core.model.StoreData d) {
+    var sim = f.sim;
+    int kp = f.dims.kpsi();
+    int nJ = sim.products();
+    int s = d.storeIndex;
+    java.util.Map<String, Double> dl = new java.util.HashMap<>();
+    for (int i = 0; i < sim.rows; i++) {
+      if (sim.rowStore[i] == s) dl.put(sim.weekDates[sim.rowWeek[i]] + "/" + sim.rowProduct[i], sim.delta[i]);
+    }
+    int np = d.products.length;
+    double[] nat = new double[kp + np + d.rows()];
+    System.arraycopy(sim.psi, s * kp, nat, 0, kp);
+    for (int l = 0; l < np; l++) nat[kp + l] = sim.kappa[s * nJ + d.products[l]];
+    for (int tt = 0; tt < d.markets(); tt++) for (int r = d.rowStart[tt]; r < d.rowStart[tt + 1]; r++) nat[kp + np + r] = dl.get(d.weeks[tt] + "/" + d.product[r]);
+    return nat;
+  }
+
+  static final boolean fixGlobals = System.getenv("FIXG") != null;
+
+  /** Adds {sum xi^2, sum squared price residual, rows} at natural locals under g into acc. */
+  static void residuals(aislecast.core.model.StoreData d, aislecast.core.model.LocalParams g,
+      double[] nat, int kp, double[] acc) {
+    int np = d.products.length;
+    double[] kappa = java.util.Arrays.copyOfRange(nat, kp, kp + np);
+    double[] delta = java.util.Arrays.copyOfRange(nat, kp + np, kp + np + d.rows());
+    for (int row = 0; row < d.rows(); row++) {
+      double xi = aislecast.core.model.StoreDensity.xi(d, g, kappa, delta, row);
+      double rr = d.logPrice[row] - g.pi0()[d.product[row]] - g.lambda() * xi;
+      for (int k = 0; k < d.kc; k++) rr -= d.c[row * d.kc + k] * g.pi()[k];
+      acc[0] += xi * xi; acc[1] += rr * rr; acc[2]++;
+    }
+  }
+
+  /** Store-level log density terms summed over stores at natural locals under g. */
+  static aislecast.core.model.StoreDensity.Terms terms(SimFixture f, aislecast.core.model.LocalParams g,
+      java.util.function.IntFunction<double[]> natural) {
+    int kp = f.dims.kpsi();
+    var t = new aislecast.core.model.StoreDensity.Terms(0, 0, 0, 0, 0);
+    for (int si = 0; si < f.stores.size(); si++) {
+      var d = f.stores.get(si);
+      double[] nat = natural.apply(si);
+      int np = d.products.length;
+      t = t.plus(aislecast.core.model.StoreDensity.terms(d, f.catalog.x(), f.catalog.attributes(), g,
+          java.util.Arrays.copyOfRange(nat, 0, kp), java.util.Arrays.copyOfRange(nat, kp, kp + np),
+          java.util.Arrays.copyOfRange(nat, kp + np, kp + np + d.rows())));
+    }
+    return t;
+  }
+
+  /**
+   * With the globals held at the truth, the locals' draws must reproduce the truth's own
+   * statistics (a draw and the truth have the same joint law with the data given the globals):
+   * mean xi^2 and mean squared price residual over rows, and the stores' mean psi. Every 25 sweeps.
+   */
+  static void localSummary(SimFixture f, java.util.List<StoreBlock> blocks,
+      java.util.List<aislecast.core.mcmc.StoreSampler> samplers, int sweep) {
+    if (sweep % 25 != 24) return;
+    int kp = f.dims.kpsi();
+    var g = Sweeps.localParams(new Globals[] {f.truth})[0];
+    StringBuilder b = new StringBuilder(String.format("sweep %4d", sweep + 1));
+    for (int c = -1; c < blocks.get(0).chains.length; c++) {
+      double[] acc = new double[3];
+      double[] psiMean = new double[kp];
+      for (int i = 0; i < blocks.size(); i++) {
+        var d = f.stores.get(i);
+        double[] nat = c < 0 ? truthLocals(f, d) : samplers.get(i).natural(blocks.get(i).chains[c].position);
+        residuals(d, g, nat, kp, acc);
+        for (int k = 0; k < kp; k++) psiMean[k] += nat[k] / blocks.size();
+      }
+      b.append(String.format(" | %s xi2 %.5f res2 %.5f psi", c < 0 ? "truth" : "c" + c, acc[0] / acc[2], acc[1] / acc[2]));
+      for (int k = 0; k < 5; k++) b.append(String.format(" %.2f", psiMean[k]));
+    }
+    System.out.println(b);
+  }
+
+  /**
+   * Store-level log density terms (sales, price, xi, kappa, psi) summed over stores at the
+   * simulation's true locals and globals, and at each chain's final state; and the truth's mean
+   * xi^2 and squared price residual against sigma_xi2 and sigma_p2 (a check of the fixture).
+   */
+  static void truthDensity(SimFixture f, InProcessRunner.Result res) {
+    int kp = f.dims.kpsi();
+    var gt = Sweeps.localParams(new Globals[] {f.truth})[0];
+    double[] acc = new double[3];
+    for (var d : f.stores) {
+      residuals(d, gt, truthLocals(f, d), kp, acc);
+    }
+    System.out.printf("truth rows %.0f: mean xi^2 %.5f (sigma_xi2 %.5f), mean squared price residual %.5f (sigma_p2 %.5f)%n", acc[2], acc[0] / acc[2], f.truth.sigmaXi2(), acc[1] / acc[2], f.truth.sigmaP2());
+    var t = terms(f, gt, si -> truthLocals(f, f.stores.get(si)));
+    System.out.printf("truth   total %12.1f  sales %12.1f price %10.1f xi %10.1f kappa %8.1f psi %8.1f%n", t.total(), t.sales(), t.price(), t.xi(), t.kappa(), t.psi());
+    for (int c = 0; c < res.last().chains(); c++) {
+      final int chain = c;
+      var gc = Sweeps.localParams(new Globals[] {res.last().globals()[c]})[0];
+      var u = terms(f, gc, si -> new aislecast.core.mcmc.StoreSampler(f.stores.get(si), f.catalog.x(), f.catalog.attributes())
+          .natural(res.stores().get(si).chains[chain].position));
+      System.out.printf("chain %d total %12.1f  sales %12.1f price %10.1f xi %10.1f kappa %8.1f psi %8.1f%n", c, u.total(), u.sales(), u.price(), u.xi(), u.kappa(), u.psi());
+    }
+  }
+
   public static void main(String[] args) throws Exception {
     int stores = Integer.parseInt(args[0]);
     int weeks = Integer.parseInt(args[1]);
@@ -70,9 +171,43 @@ public final class SimFitProbe {
     int leapfrog = Integer.parseInt(System.getenv().getOrDefault("LF", "16"));
     var set = new SamplerSettings(4, warm, keep, local, leapfrog, 0.8, Long.parseLong(System.getenv().getOrDefault("SEED", "11")), false, !"0".equals(System.getenv("RIDGE")));
     RidgeMove.collapseNoiseVariance = !"0".equals(System.getenv("COLLAPSE_XI"));
+    aislecast.core.mcmc.StoreSampler.holdPsi = System.getenv("FIXPSI") != null;
     RidgeMove.collapsePriceNoise = !"0".equals(System.getenv("COLLAPSE_P"));
     long t0 = System.nanoTime();
-    var res = InProcessRunner.run(f.stores, f.catalog, 2, 1, 1, Priors.defaults(2, 3), set);
+    Priors priors = Priors.defaults(2, 3);
+    if (System.getenv("VS0") != null) {
+      // probe: V_psi ~ Inv-Wishart(nu0 + VNU, VS0 * nu0 I) instead of the default 0.1 nu0 I
+      int kp = priors.vPsi().dim();
+      double nu0 = kp + 3 + Double.parseDouble(System.getenv().getOrDefault("VNU", "0"));
+      double[] s0 = new double[kp * kp];
+      for (int i = 0; i < kp; i++) s0[i * kp + i] = Double.parseDouble(System.getenv("VS0")) * nu0;
+      priors = priors.withVPsi(new aislecast.core.globals.InvWishart(nu0, s0, kp));
+    }
+    if (System.getenv("HOLDH") != null) {
+      // diagnostic: the hierarchy (Gamma, V_psi) held at the truth by point-mass priors
+      // (HOLDH=gamma: Gamma only)
+      int kp = f.dims.kpsi();
+      double[] tight = new double[f.truth.gammaPsi().length];
+      java.util.Arrays.fill(tight, 1e-10);
+      double nu = 1e7;
+      double[] sv = f.truth.vPsi().clone();
+      for (int i = 0; i < sv.length; i++) sv[i] *= nu + kp + 1;
+      priors = priors.withGammaPsi(f.truth.gammaPsi().clone(), tight);
+      if (!"gamma".equals(System.getenv("HOLDH"))) {
+        priors = priors.withVPsi(new aislecast.core.globals.InvWishart(nu, sv, kp));
+      }
+    }
+    // diagnostics: FROM_TRUTH=1 starts every chain at the simulation's truth (FROM_TRUTH=locals:
+    // only the locals), FIXG=1 holds the globals there and prints the locals' statistics
+    String from = System.getenv("FROM_TRUTH");
+    Globals[] g0 = null;
+    if ("1".equals(from) || fixGlobals) {
+      g0 = new Globals[set.chains()];
+      java.util.Arrays.fill(g0, f.truth);
+    }
+    var start = new InProcessRunner.Start(g0, from == null ? null : d -> truthLocals(f, d),
+        fixGlobals, fixGlobals ? (sweep, blocks, samplers, state) -> localSummary(f, blocks, samplers, sweep) : null);
+    var res = InProcessRunner.run(f.stores, f.catalog, 2, 1, 1, priors, set, start);
     System.out.printf("%.1f s%n", (System.nanoTime() - t0) / 1e9);
     String[] names = res.parameterNames();
     double[] truth = f.truth.toFlat();
@@ -89,6 +224,9 @@ public final class SimFitProbe {
       System.out.printf("%-22s truth %8.3f mean %8.3f [%8.3f %8.3f] %s rhat %.3f essb %.0f%n", names[p], truth[p], s.mean(), s.q05(), s.q95(), in ? " " : "*", s.rhat(), s.essBulk());
     }
     slowDirections(res.globalDraws(), names, 25);
+    if (System.getenv("TRUTHLP") != null) {
+      truthDensity(f, res);
+    }
     String dump = System.getenv("DUMP");
     if (dump != null) {
       try (var w = new java.io.PrintWriter(dump + "_globals.csv")) {
