@@ -59,7 +59,7 @@ public final class SimFitProbe {
   }
 
   /** The simulation's true natural locals [psi, kappa, delta] of one store. */
-  static double[] truthLocals(SimFixture f, aislecast.core.model.StoreData d) {
+  public static double[] truthLocals(SimFixture f, aislecast.core.model.StoreData d) {
     var sim = f.sim;
     int kp = f.dims.kpsi();
     int nJ = sim.products();
@@ -139,6 +139,58 @@ public final class SimFitProbe {
    * simulation's true locals and globals, and at each chain's final state; and the truth's mean
    * xi^2 and squared price residual against sigma_xi2 and sigma_p2 (a check of the fixture).
    */
+  /**
+   * Own-price elasticity of every product, averaged over the stores' last week in which it is
+   * stocked, at natural locals per store: the quantity scenarios depend on most.
+   */
+  static double[] ownElasticities(SimFixture f, java.util.function.IntFunction<double[]> natural) {
+    int kx = f.catalog.attributes();
+    double[] x = f.catalog.x();
+    int kp = f.dims.kpsi();
+    int jCat = x.length / kx;
+    double[] sum = new double[jCat];
+    double[] cnt = new double[jCat];
+    for (int si = 0; si < f.stores.size(); si++) {
+      var d = f.stores.get(si);
+      double[] nat = natural.apply(si);
+      int r = d.shoppers;
+      double[] alpha = new double[r];
+      double[] mu = new double[r * jCat];
+      aislecast.core.demand.Heterogeneity.shopperTastes(nat, kx, d.nu, r, x, jCat, alpha, mu);
+      int np = d.products.length;
+      boolean[] seen = new boolean[jCat];
+      for (int t = d.markets() - 1; t >= 0; t--) {
+        int a = d.rowStart[t];
+        int j = d.rowStart[t + 1] - a;
+        double[] v = new double[r * j];
+        double[] del = new double[j];
+        double[] pr = new double[j];
+        for (int q = 0; q < j; q++) {
+          del[q] = nat[kp + np + a + q];
+          pr[q] = d.price[a + q];
+          for (int i = 0; i < r; i++) v[i * j + q] = mu[i * jCat + d.product[a + q]] - alpha[i] * pr[q];
+        }
+        double[] sh = new double[j];
+        double[] probs = new double[r * j];
+        aislecast.core.demand.ShareKernel.shares(r, j, del, v, sh, probs);
+        double[] jac = new double[j * j];
+        aislecast.core.demand.ShareKernel.jacobianPrice(r, j, probs, alpha, jac);
+        double[] el = new double[j * j];
+        aislecast.core.demand.ShareKernel.elasticities(j, jac, sh, pr, el);
+        for (int q = 0; q < j; q++) {
+          int prod = d.product[a + q];
+          if (!seen[prod]) {
+            seen[prod] = true;
+            sum[prod] += el[q * j + q];
+            cnt[prod]++;
+          }
+        }
+      }
+    }
+    for (int p = 0; p < jCat; p++) sum[p] /= Math.max(1, cnt[p]);
+    return sum;
+  }
+
   static void truthDensity(SimFixture f, InProcessRunner.Result res) {
     int kp = f.dims.kpsi();
     var gt = Sweeps.localParams(new Globals[] {f.truth})[0];
@@ -146,6 +198,40 @@ public final class SimFitProbe {
     for (var d : f.stores) {
       residuals(d, gt, truthLocals(f, d), kp, acc);
     }
+    // the model's shares at the true locals against the simulator's: the same model, same draws?
+    double maxDiff = 0;
+    int kx = f.catalog.attributes();
+    double[] x = f.catalog.x();
+    int jCat = x.length / kx;
+    for (var d : f.stores) {
+      double[] nat = truthLocals(f, d);
+      java.util.Map<String, Double> simShare = new java.util.HashMap<>();
+      for (int i = 0; i < f.sim.rows; i++) {
+        if (f.sim.rowStore[i] == d.storeIndex) simShare.put(f.sim.weekDates[f.sim.rowWeek[i]] + "/" + f.sim.rowProduct[i], f.sim.share[i]);
+      }
+      int r = d.shoppers;
+      double[] alpha = new double[r];
+      double[] mu = new double[r * jCat];
+      aislecast.core.demand.Heterogeneity.shopperTastes(nat, kx, d.nu, r, x, jCat, alpha, mu);
+      int np = d.products.length;
+      for (int t = 0; t < d.markets(); t++) {
+        int a = d.rowStart[t];
+        int j = d.rowStart[t + 1] - a;
+        double[] v = new double[r * j];
+        double[] del = new double[j];
+        for (int q = 0; q < j; q++) {
+          del[q] = nat[kp + np + a + q];
+          for (int i = 0; i < r; i++) v[i * j + q] = mu[i * jCat + d.product[a + q]] - alpha[i] * d.price[a + q];
+        }
+        double[] sh = new double[j];
+        aislecast.core.demand.ShareKernel.shares(r, j, del, v, sh, null);
+        for (int q = 0; q < j; q++) {
+          double ref = simShare.get(d.weeks[t] + "/" + d.product[a + q]);
+          maxDiff = Math.max(maxDiff, Math.abs(sh[q] - ref) / ref);
+        }
+      }
+    }
+    System.out.printf("model shares at the true locals vs the simulator's: max relative difference %.2e%n", maxDiff);
     System.out.printf("truth rows %.0f: mean xi^2 %.5f (sigma_xi2 %.5f), mean squared price residual %.5f (sigma_p2 %.5f)%n", acc[2], acc[0] / acc[2], f.truth.sigmaXi2(), acc[1] / acc[2], f.truth.sigmaP2());
     var t = terms(f, gt, si -> truthLocals(f, f.stores.get(si)));
     System.out.printf("truth   total %12.1f  sales %12.1f price %10.1f xi %10.1f kappa %8.1f psi %8.1f%n", t.total(), t.sales(), t.price(), t.xi(), t.kappa(), t.psi());
@@ -167,6 +253,9 @@ public final class SimFitProbe {
     int local = Integer.parseInt(args[5]);
     int draws = Integer.parseInt(args[6]);
     SimSettings st = SimSettings.demo().withSizes(stores, weeks, products, 3, 3, draws);
+    if (System.getenv("DATA_SEED") != null) {
+      st = st.withSeed(Long.parseLong(System.getenv("DATA_SEED")));
+    }
     SimFixture f = new SimFixture(st);
     int leapfrog = Integer.parseInt(System.getenv().getOrDefault("LF", "16"));
     var set = new SamplerSettings(4, warm, keep, local, leapfrog, 0.8, Long.parseLong(System.getenv().getOrDefault("SEED", "11")), false, !"0".equals(System.getenv("RIDGE")));
@@ -185,15 +274,22 @@ public final class SimFitProbe {
     }
     if (System.getenv("HOLDH") != null) {
       // diagnostic: the hierarchy (Gamma, V_psi) held at the truth by point-mass priors
-      // (HOLDH=gamma: Gamma only)
+      // (HOLDH=gamma: Gamma only; row0 / row1: one row of Gamma only)
       int kp = f.dims.kpsi();
-      double[] tight = new double[f.truth.gammaPsi().length];
-      java.util.Arrays.fill(tight, 1e-10);
+      String hold = System.getenv("HOLDH");
+      double[] tight = priors.gammaPsiVar().clone();
+      double[] mean = priors.gammaPsiMean().clone();
+      for (int i = 0; i < tight.length; i++) {
+        boolean row0 = i < kp;
+        if (hold.equals("row0") && !row0 || hold.equals("row1") && row0) continue;
+        tight[i] = 1e-10;
+        mean[i] = f.truth.gammaPsi()[i];
+      }
       double nu = 1e7;
       double[] sv = f.truth.vPsi().clone();
       for (int i = 0; i < sv.length; i++) sv[i] *= nu + kp + 1;
-      priors = priors.withGammaPsi(f.truth.gammaPsi().clone(), tight);
-      if (!"gamma".equals(System.getenv("HOLDH"))) {
+      priors = priors.withGammaPsi(mean, tight);
+      if (hold.equals("1")) {
         priors = priors.withVPsi(new aislecast.core.globals.InvWishart(nu, sv, kp));
       }
     }
@@ -205,8 +301,20 @@ public final class SimFitProbe {
       g0 = new Globals[set.chains()];
       java.util.Arrays.fill(g0, f.truth);
     }
+    // ELAST=1: own-price elasticities per product after every kept sweep, then their R-hat and ESS
+    boolean elast = System.getenv("ELAST") != null;
+    double[][][] el = new double[4][keep][];
+    InProcessRunner.SweepHook hook = (sweep, blocks, samplers, state) -> {
+      if (fixGlobals) localSummary(f, blocks, samplers, sweep);
+      if (elast && sweep >= warm) {
+        for (int c = 0; c < 4; c++) {
+          final int chain = c;
+          el[c][sweep - warm] = ownElasticities(f, si -> samplers.get(si).natural(blocks.get(si).chains[chain].position));
+        }
+      }
+    };
     var start = new InProcessRunner.Start(g0, from == null ? null : d -> truthLocals(f, d),
-        fixGlobals, fixGlobals ? (sweep, blocks, samplers, state) -> localSummary(f, blocks, samplers, sweep) : null);
+        fixGlobals, hook);
     var res = InProcessRunner.run(f.stores, f.catalog, 2, 1, 1, priors, set, start);
     System.out.printf("%.1f s%n", (System.nanoTime() - t0) / 1e9);
     String[] names = res.parameterNames();
@@ -224,6 +332,50 @@ public final class SimFitProbe {
       System.out.printf("%-22s truth %8.3f mean %8.3f [%8.3f %8.3f] %s rhat %.3f essb %.0f%n", names[p], truth[p], s.mean(), s.q05(), s.q95(), in ? " " : "*", s.rhat(), s.essBulk());
     }
     slowDirections(res.globalDraws(), names, 25);
+    if (System.getenv("PSIZ") != null) {
+      // per store and component: z of the true psi in the pooled draws; with the globals held at
+      // the truth the stores are independent and each z should look like a standard normal draw
+      int kp = f.dims.kpsi();
+      double[] zMean = new double[kp];
+      int[] outside = new int[kp];
+      for (int si = 0; si < f.stores.size(); si++) {
+        var blk = res.stores().get(si);
+        double[] tr = truthLocals(f, f.stores.get(si));
+        for (int k = 0; k < kp; k++) {
+          double m = 0, sq = 0; int n = 0;
+          for (int c = 0; c < 4; c++) for (int i = 0; i < blk.keptDraws; i++) { double v = blk.psiDraws[c][i * kp + k]; m += v; sq += v * v; n++; }
+          m /= n;
+          double z = (tr[k] - m) / Math.sqrt(sq / n - m * m);
+          zMean[k] += z / f.stores.size();
+          if (Math.abs(z) > 1.645) outside[k]++;
+        }
+      }
+      StringBuilder b = new StringBuilder("psi z of the truth, mean over stores (outside 90%):");
+      for (int k = 0; k < kp; k++) b.append(String.format(" %+.2f(%d)", zMean[k], outside[k]));
+      System.out.println(b);
+    }
+    if (elast) {
+      double[] te = ownElasticities(f, si -> truthLocals(f, f.stores.get(si)));
+      int covE = 0;
+      double worst = 0, minE = Double.MAX_VALUE, zSum = 0;
+      for (int p = 0; p < te.length; p++) {
+        double[][] ch = new double[4][keep];
+        double[] all = new double[4 * keep];
+        for (int c = 0; c < 4; c++) for (int i = 0; i < keep; i++) { ch[c][i] = el[c][i][p]; all[c * keep + i] = ch[c][i]; }
+        java.util.Arrays.sort(all);
+        double q05 = all[(int) (0.05 * (all.length - 1))], q95 = all[(int) (0.95 * (all.length - 1))];
+        double rh = aislecast.core.diag.Diagnostics.rankRhat(ch), es = aislecast.core.diag.Diagnostics.essBulk(ch);
+        boolean in = te[p] >= q05 && te[p] <= q95;
+        double mean = 0, sq = 0;
+        for (double v : all) { mean += v; sq += v * v; }
+        mean /= all.length;
+        zSum += (te[p] - mean) / Math.sqrt(sq / all.length - mean * mean);
+        covE += in ? 1 : 0;
+        worst = Math.max(worst, rh); minE = Math.min(minE, es);
+        System.out.printf("own elasticity %-3d truth %7.3f [%7.3f %7.3f] %s rhat %.3f essb %.0f%n", p, te[p], q05, q95, in ? " " : "*", rh, es);
+      }
+      System.out.printf("own elasticities: covered %d/%d, max rhat %.3f, min ess %.0f, mean z of the truth %.2f%n", covE, te.length, worst, minE, zSum / te.length);
+    }
     if (System.getenv("TRUTHLP") != null) {
       truthDensity(f, res);
     }
