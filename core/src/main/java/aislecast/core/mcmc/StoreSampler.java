@@ -119,6 +119,9 @@ public final class StoreSampler {
    */
   public static volatile boolean holdPsi = false;
 
+  /** Probe switch: delta keeps its value the same way (kappa is still drawn given it). */
+  public static volatile boolean holdDelta = false;
+
   /**
    * One local transition (HMC on (psi, delta), then Gibbs on kappa), updating {@code s} in place.
    *
@@ -132,9 +135,10 @@ public final class StoreSampler {
     // jitter the step size by +-10% so trajectories don't resonate (Neal 2011, section 5.4.2.2)
     eps *= 0.9 + 0.2 * rng.nextDouble();
     double[] im = s.invMass;
-    if (holdPsi) {
+    if (holdPsi || holdDelta) {
       im = im.clone();
-      java.util.Arrays.fill(im, 0, kpsi, 1e-300);
+      java.util.Arrays.fill(im, holdPsi ? 0 : kpsi + d.products.length,
+          holdDelta ? im.length : kpsi, 1e-300);
     }
     Hmc.Step st = Hmc.step(rng, state, target, eps, im, set.leapfrogSteps());
     s.position = st.state().position();

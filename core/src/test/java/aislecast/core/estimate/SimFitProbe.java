@@ -261,6 +261,7 @@ public final class SimFitProbe {
     var set = new SamplerSettings(4, warm, keep, local, leapfrog, 0.8, Long.parseLong(System.getenv().getOrDefault("SEED", "11")), false, !"0".equals(System.getenv("RIDGE")));
     RidgeMove.collapseNoiseVariance = !"0".equals(System.getenv("COLLAPSE_XI"));
     aislecast.core.mcmc.StoreSampler.holdPsi = System.getenv("FIXPSI") != null;
+    aislecast.core.mcmc.StoreSampler.holdDelta = System.getenv("FIXDELTA") != null;
     RidgeMove.collapsePriceNoise = !"0".equals(System.getenv("COLLAPSE_P"));
     long t0 = System.nanoTime();
     Priors priors = Priors.defaults(2, 3);
