@@ -119,7 +119,10 @@ public final class StoreSampler {
    */
   public static volatile boolean holdPsi = false;
 
-  /** Probe switch: delta keeps its value the same way (kappa is still drawn given it). */
+  /**
+   * Probe switch: the sampler coordinate of delta ({@code eta = delta + g(psi)}) is held the same
+   * way, so together with {@link #holdPsi} delta keeps its value; kappa is still drawn given it.
+   */
   public static volatile boolean holdDelta = false;
 
   /**
