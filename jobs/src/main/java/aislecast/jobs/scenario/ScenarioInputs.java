@@ -45,6 +45,26 @@ final class ScenarioInputs {
   /** Driver-side result: stores without draws yet, the catalog, and notes. */
   record Prepared(ProductCatalog catalog, List<StoreWork> stores, List<String> notes) {}
 
+  /**
+   * A note when the posterior run did not meet its convergence limits (its run.json status is
+   * not_converged, not_converged_allowed or stopped), else null.
+   */
+  static String convergenceNote(String status) {
+    boolean unconverged = false;
+    for (var st : new aislecast.jobs.estimate.EstimateJob.Status[] {
+        aislecast.jobs.estimate.EstimateJob.Status.NOT_CONVERGED,
+        aislecast.jobs.estimate.EstimateJob.Status.UNCONVERGED_ALLOWED,
+        aislecast.jobs.estimate.EstimateJob.Status.STOPPED}) {
+      unconverged |= st.label.equals(status);
+    }
+    if (!unconverged) {
+      return null;
+    }
+    return "the posterior run's status is '" + status + "': it did not meet its convergence"
+        + " limits, so treat these results as indicative only (on simulated data, runs like it"
+        + " understated price sensitivity; see README, Estimation)";
+  }
+
   static Prepared prepare(SparkSession spark, RunConfig config, ValidatedInput validated,
       PosteriorRun posterior, int baseWeeks, List<String> portfolio, String ownCostColumn) {
     JavaSparkContext jsc = JavaSparkContext.fromSparkContext(spark.sparkContext());
@@ -54,6 +74,10 @@ final class ScenarioInputs {
     if (posterior.generatedShopperDraws() == null && validated.shopperDraws().isEmpty()) {
       notes.add("posterior run.json does not record sampler.shopper_draws; generated shopper"
           + " draws use R = " + generated + " from the configuration");
+    }
+    String unconverged = convergenceNote(posterior.status());
+    if (unconverged != null) {
+      notes.add(unconverged);
     }
     EstimationProblem problem = ProblemBuilder.build(jsc, validated, posterior.seed(), generated);
     notes.addAll(problem.notes());
