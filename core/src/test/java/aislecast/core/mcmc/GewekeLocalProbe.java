@@ -69,10 +69,11 @@ public final class GewekeLocalProbe {
     long t0 = System.nanoTime();
     for (int it = 0; it < iterations; it++) {
       nat = sampler.natural(s.position);
+      double[] kappa = java.util.Arrays.copyOfRange(nat, kp, kp + np);
+      double[] delta = java.util.Arrays.copyOfRange(nat, kp + np, nat.length);
       // data given the locals: log price from the price equation, then units from the shares
       for (int row = 0; row < d.rows(); row++) {
-        double xi = aislecast.core.model.StoreDensity.xi(d, g, java.util.Arrays.copyOfRange(nat, kp, kp + np),
-            java.util.Arrays.copyOfRange(nat, kp + np, nat.length), row);
+        double xi = aislecast.core.model.StoreDensity.xi(d, g, kappa, delta, row);
         double m = g.pi0()[d.product[row]] + g.lambda() * xi;
         for (int k = 0; k < d.kc; k++) {
           m += d.c[row * d.kc + k] * g.pi()[k];
@@ -113,9 +114,10 @@ public final class GewekeLocalProbe {
       stat[kp][it] = kd / np;
       double xs = 0;
       double xs2 = 0;
+      kappa = java.util.Arrays.copyOfRange(nat, kp, kp + np);
+      delta = java.util.Arrays.copyOfRange(nat, kp + np, nat.length);
       for (int row = 0; row < d.rows(); row++) {
-        double xi = aislecast.core.model.StoreDensity.xi(d, g, java.util.Arrays.copyOfRange(nat, kp, kp + np),
-            java.util.Arrays.copyOfRange(nat, kp + np, nat.length), row);
+        double xi = aislecast.core.model.StoreDensity.xi(d, g, kappa, delta, row);
         xs += xi;
         xs2 += xi * xi;
       }

@@ -205,6 +205,9 @@ public final class RecommendJob {
       out.println("  " + RECOMMENDATIONS);
       out.println("  validation/rejects");
       out.println("  " + RunManifest.RUN_JSON);
+      for (String n : prep.notes()) {
+        out.println("  note: " + n);
+      }
       out.flush();
       return new Result(run.target(), prep.stores().size(), sel.size(), count, seconds);
     } finally {
