@@ -193,6 +193,11 @@ public final class StoreSampler {
     }
   }
 
+  /** This store's local target (probes evaluate it at other globals). */
+  public StoreTarget target() {
+    return target;
+  }
+
   /** The sales log likelihood at a position in natural coordinates [psi, kappa, delta]. */
   public double salesLogLikelihood(double[] natural) {
     return target.salesLogLikelihoodNatural(natural);

@@ -273,6 +273,17 @@ public final class SimFitProbe {
       for (int i = 0; i < kp; i++) s0[i * kp + i] = Double.parseDouble(System.getenv("VS0")) * nu0;
       priors = priors.withVPsi(new aislecast.core.globals.InvWishart(nu0, s0, kp));
     }
+    if (System.getenv("NOISE_SCALE") != null) {
+      // probe: Inv-Gamma(2, s) for sigma_xi2 and sigma_p2 instead of the default scale 0.5
+      // (NOISE_SCALE_P / NOISE_SCALE_XI set one of them only)
+      String both = System.getenv("NOISE_SCALE");
+      double sp = Double.parseDouble(System.getenv().getOrDefault("NOISE_SCALE_P", both));
+      double sx = Double.parseDouble(System.getenv().getOrDefault("NOISE_SCALE_XI", both));
+      priors = new Priors(priors.kd(), priors.kpsi(), priors.gammaPsiMean(), priors.gammaPsiVar(),
+          priors.vPsi(), priors.kappabar(), priors.tau2(), priors.gamma(), priors.pi0(), priors.pi(),
+          priors.lambda(), new aislecast.core.globals.InvGamma(priors.sigmaXi2().shape(), sx),
+          new aislecast.core.globals.InvGamma(priors.sigmaP2().shape(), sp));
+    }
     if (System.getenv("HOLDH") != null) {
       // diagnostic: the hierarchy (Gamma, V_psi) held at the truth by point-mass priors
       // (HOLDH=gamma: Gamma only; row0 / row1: one row of Gamma only)
@@ -305,7 +316,12 @@ public final class SimFitProbe {
     // ELAST=1: own-price elasticities per product after every kept sweep, then their R-hat and ESS
     boolean elast = System.getenv("ELAST") != null;
     double[][][] el = new double[4][keep][];
+    AnnealedMoveHook anneal = System.getenv("ANNEAL") == null ? null
+        : new AnnealedMoveHook(Integer.parseInt(System.getenv("ANNEAL")),
+            Integer.parseInt(System.getenv().getOrDefault("AHMC", "1")), leapfrog, warm, priors,
+            f.catalog.x(), f.catalog.attributes(), set.seed());
     InProcessRunner.SweepHook hook = (sweep, blocks, samplers, state) -> {
+      if (anneal != null) anneal.accept(sweep, blocks, samplers, state);
       if (fixGlobals) localSummary(f, blocks, samplers, sweep);
       if (elast && sweep >= warm) {
         for (int c = 0; c < 4; c++) {

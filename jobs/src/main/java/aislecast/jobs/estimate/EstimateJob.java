@@ -3,6 +3,7 @@ package aislecast.jobs.estimate;
 import aislecast.core.diag.Diagnostics;
 import aislecast.core.diag.ParameterSummary;
 import aislecast.core.estimate.InitialGlobals;
+import aislecast.core.estimate.PriorPull;
 import aislecast.core.estimate.SamplerSettings;
 import aislecast.core.estimate.StoreBlock;
 import aislecast.core.globals.Dims;
@@ -291,6 +292,9 @@ public final class EstimateJob {
       List<String> failures = convergenceFailures(names, summaries, sc.rhatMax(), sc.essMin());
       Status status = failures.isEmpty() ? Status.CONVERGED
           : o.allowUnconverged() ? Status.UNCONVERGED_ALLOWED : Status.NOT_CONVERGED;
+      // variance priors far above where the posterior puts the variance pull on weakly
+      // identified directions (README, "Priors that pull"): say so in run.json and on the console
+      List<String> priorNotes = PriorPull.varianceNotes(priors, names, summaries);
       timings.put("diagnostics", secondsSince(t));
 
       // 7. Outputs, written whole into the staging folder, then published.
@@ -305,7 +309,7 @@ public final class EstimateJob {
       timings.put("write", secondsSince(t));
       timings.put("total", secondsSince(tStart));
       Manifest.write(staging, spark, o, config, identity, set, problem, rec, summaries, names,
-          failures, status, timings, validated);
+          failures, status, timings, validated, priorNotes);
       run.commit();
       log.info("published", "estimate: published " + run.target() + (o.replace()
           ? " (replacing the earlier run of this id)" : ""), "run_dir", run.target(), "status",
@@ -316,6 +320,10 @@ public final class EstimateJob {
           rec.nextSweep(), rec.sweepSeconds, rec.modelSeconds, rec.aggregateSeconds,
           rec.driverSeconds, problem);
       printOutputs(out, result, sc, jsc.defaultParallelism());
+      for (String note : priorNotes) {
+        out.println("note: " + note);
+        log.info("prior_note", "estimate: " + note);
+      }
       StringBuilder phases = new StringBuilder("  timings:");
       timings.forEach((k, v) -> phases.append(String.format(Locale.ROOT, " %s %.1fs", k, v)));
       out.println(phases);

@@ -27,7 +27,8 @@ final class Manifest {
   static void write(String runDir, SparkSession spark, EstimateJob.Options o, RunConfig config,
       RunIdentity id, SamplerSettings set, EstimationProblem problem, ChainRecord rec,
       ParameterSummary[] summaries, String[] names, List<String> failures,
-      EstimateJob.Status status, Map<String, Double> timings, ValidatedInput validated) {
+      EstimateJob.Status status, Map<String, Double> timings, ValidatedInput validated,
+      List<String> notes) {
     Map<String, Object> m = header(spark, o, id, status.label);
     Map<String, Object> in = new LinkedHashMap<>();
     in.put("input_rows", validated.summary().inputRows());
@@ -82,6 +83,8 @@ final class Manifest {
     conv.put("global_parameters", names.length);
     conv.put("failures", failures);
     m.put("convergence", conv);
+    // things the user should know about the result (e.g. a variance prior pulling, PriorPull)
+    m.put("notes", notes);
 
     Map<String, Object> t = new LinkedHashMap<>();
     timings.forEach((k, v) -> t.put(k + "_seconds", v));

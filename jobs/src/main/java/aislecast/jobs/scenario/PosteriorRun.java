@@ -38,12 +38,15 @@ public final class PosteriorRun {
   private final long seed;
   private final Integer generatedShopperDraws;
   private final String status;
+  private final List<String> notes;
 
-  private PosteriorRun(String dir, long seed, Integer generatedShopperDraws, String status) {
+  private PosteriorRun(String dir, long seed, Integer generatedShopperDraws, String status,
+      List<String> notes) {
     this.dir = dir;
     this.seed = seed;
     this.generatedShopperDraws = generatedShopperDraws;
     this.status = status;
+    this.notes = List.copyOf(notes);
   }
 
   /** Opens {@code dir}; exit 2 when it is not a finished estimation run. */
@@ -71,8 +74,10 @@ public final class PosteriorRun {
       throw new RunFailure(RunFailure.BAD_INPUT, dir + "/" + RUN_JSON + " has no numeric seed");
     }
     JsonNode r = root.path("configuration").path("sampler").path("shopper_draws");
+    List<String> notes = new ArrayList<>();
+    root.path("notes").forEach(n -> notes.add(n.asText()));
     return new PosteriorRun(dir, seedNode.asLong(), r.canConvertToInt() ? r.asInt() : null,
-        root.path("status").asText(null));
+        root.path("status").asText(null), notes);
   }
 
   public String dir() {
@@ -87,6 +92,11 @@ public final class PosteriorRun {
   /** R of generated shopper draws in estimation, or null when run.json does not say. */
   public Integer generatedShopperDraws() {
     return generatedShopperDraws;
+  }
+
+  /** Notes the estimation run recorded in run.json (e.g. a variance prior pulling); may be empty. */
+  public List<String> notes() {
+    return notes;
   }
 
   /** Status recorded in run.json (e.g. ok, not_converged), or null. */

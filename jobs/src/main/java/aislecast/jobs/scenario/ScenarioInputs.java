@@ -79,6 +79,9 @@ final class ScenarioInputs {
     if (unconverged != null) {
       notes.add(unconverged);
     }
+    // what estimation said about its own result (e.g. a variance prior pulling) holds for every
+    // result computed from its draws
+    posterior.notes().forEach(n -> notes.add("posterior run: " + n));
     EstimationProblem problem = ProblemBuilder.build(jsc, validated, posterior.seed(), generated);
     notes.addAll(problem.notes());
     Map<String, String> region = new HashMap<>();

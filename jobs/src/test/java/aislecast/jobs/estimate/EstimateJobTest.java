@@ -272,11 +272,24 @@ class EstimateJobTest {
     assertEquals("not_converged", strict.get("status").asText());
     assertTrue(strict.get("convergence").get("failures").size() > 0);
 
-    int allowed = Main.commandLine().setOut(new PrintWriter(new StringWriter(), true))
-        .execute(concat(base, "--run-id", "f2", "--allow-unconverged"));
+    // the second run also sets a variance prior scale far above any variance these data show,
+    // so run.json and the console carry PriorPull's note for sigma_p2
+    Path pulled = out.resolve("pulled.yaml");
+    Files.writeString(pulled, Files.readString(conf) + "priors:\n  variance_scale: 100\n");
+    StringWriter console = new StringWriter();
+    String[] withPrior = base.clone();
+    withPrior[6] = pulled.toString();
+    int allowed = Main.commandLine().setOut(new PrintWriter(console, true))
+        .execute(concat(withPrior, "--run-id", "f2", "--allow-unconverged"));
     assertEquals(0, allowed);
     JsonNode loose = new ObjectMapper().readTree(out.resolve("f2/run.json").toFile());
     assertEquals("not_converged_allowed", loose.get("status").asText());
+    List<String> notes = new java.util.ArrayList<>();
+    loose.get("notes").forEach(n -> notes.add(n.asText()));
+    assertTrue(notes.stream().anyMatch(n -> n.startsWith("prior of sigma_p2: its Inv-Gamma(2,"
+        + " 100) scale is")), notes.toString());
+    assertTrue(console.toString().contains("note: prior of sigma_p2:"), console.toString());
+    assertTrue(strict.get("notes").isArray(), "run.json always has a notes list");
   }
 
   private static String[] concat(String[] a, String... b) {

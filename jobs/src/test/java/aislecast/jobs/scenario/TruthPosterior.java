@@ -19,6 +19,8 @@ import org.apache.spark.sql.types.StructType;
  * scenario jobs can be tested without running estimation.
  */
 final class TruthPosterior {
+  /** A note the fake estimation run records in run.json; scenarios must pass it on. */
+  static final String NOTE = "prior of sigma_p2: a note recorded by the estimation run";
   private TruthPosterior() {}
 
   static final StructType STORE_SCHEMA = DataTypes.createStructType(List.of(
@@ -50,6 +52,6 @@ final class TruthPosterior {
         .parquet(dir.resolve("posterior/store_draws").toString());
     Files.writeString(dir.resolve("run.json"), "{\"command\": \"estimate\", \"status\": \"ok\","
         + " \"seed\": " + seed + ", \"configuration\": {\"sampler\": {\"shopper_draws\": "
-        + sim.settings.draws() + "}}}");
+        + sim.settings.draws() + "}}, \"notes\": [\"" + NOTE + "\"]}");
   }
 }
