@@ -49,9 +49,9 @@ public final class PriorPull {
       if (ratio > RATIO_LIMIT) {
         notes.add(String.format(Locale.ROOT,
             "prior of %s: its Inv-Gamma(%s, %s) scale is %.0f times the posterior mean %.4g,"
-                + " so the prior pushes this variance up; on simulated data a prior this far"
-                + " above the price noise made own-price elasticities 4-10%% less elastic than"
-                + " the truth (20 stores). Consider a smaller priors.variance_scale, near the"
+                + " so the prior pushes this variance up; on simulated data (20 stores) the"
+                + " sigma_p2 prior at such a distance made own-price elasticities 4-10%% less"
+                + " elastic than the truth. Consider a smaller priors.variance_scale, near the"
                 + " variance the data show (README, \"Priors that pull\")",
             names[p], plain(prior.shape()), plain(prior.scale()), ratio, mean));
       }
