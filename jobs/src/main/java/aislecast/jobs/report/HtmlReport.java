@@ -48,6 +48,7 @@ final class HtmlReport {
       ".cautions{border-left:5px solid #b26b00;background:#fff6e5;padding:8px 16px;margin:12px 0}",
       ".cautions li{margin:4px 0}",
       ".notes{border-left:5px solid #6a7786;background:#eef1f5;padding:8px 16px;margin:12px 0}",
+      ".runnotes{border-left:5px solid #b07a00;background:#fbf4e4;padding:8px 16px;margin:12px 0}",
       "table{border-collapse:collapse;margin:6px 0 12px;font-size:12.5px}",
       "th,td{border:1px solid #d8dde5;padding:3px 7px;text-align:right;vertical-align:top}",
       "td{white-space:nowrap}.facts td{white-space:normal;overflow-wrap:anywhere}",
@@ -244,6 +245,35 @@ final class HtmlReport {
     }
   }
 
+  /**
+   * The estimation run's own notes from its run.json ({@code notes}: priors that pull the
+   * posterior and the like), shown next to the convergence table so that nobody reads the
+   * numbers without them.
+   */
+  private void runNotes(ReportData d) {
+    List<String> notes = new ArrayList<>();
+    for (RunTables.RunFolder f : d.runs()) {
+      JsonNode m = f.manifest();
+      if (m == null || !"estimate".equals(m.path("command").asText())) {
+        continue;
+      }
+      for (JsonNode n : m.path("notes")) {
+        if (n.isTextual() && !notes.contains(n.asText())) {
+          notes.add(n.asText());
+        }
+      }
+    }
+    if (notes.isEmpty()) {
+      return;
+    }
+    h.append("<div class=\"runnotes\" id=\"run-notes\"><strong>Notes of the estimation run")
+        .append("</strong> (read the estimates with these in mind)<ul>\n");
+    for (String n : notes) {
+      h.append("<li>").append(esc(n)).append("</li>\n");
+    }
+    h.append("</ul></div>\n");
+  }
+
   private void convergence(ReportData d) {
     h.append("<h2 id=\"convergence\">Convergence of the sampler</h2>\n");
     if (d.summary().isEmpty()) {
@@ -275,7 +305,9 @@ final class HtmlReport {
                   + " more"))
           .append(". Treat results that depend on them with extra care, or run longer chains.");
     }
-    h.append("</p>\n<div class=\"scroll\"><table>\n<tr><th class=\"t\">parameter</th>")
+    h.append("</p>\n");
+    runNotes(d);
+    h.append("<div class=\"scroll\"><table>\n<tr><th class=\"t\">parameter</th>")
         .append("<th>mean</th><th>sd</th><th>5%</th><th>median</th><th>95%</th><th>R-hat</th>")
         .append("<th>ESS bulk</th><th>ESS tail</th><th>MC s.e. of mean</th></tr>\n");
     for (ParameterRow p : d.summary()) {

@@ -117,6 +117,11 @@ class ReportCommandTest {
     assertTrue(html.contains("<td class=\"flag\">" + HtmlReport.num(SyntheticRuns.SLOW_RHAT)
         + "</td>"));
     assertTrue(html.contains("1 of " + SyntheticRuns.GLOBALS.size() + " parameters are beyond"));
+    // the estimation run's own notes sit above the convergence table, once
+    int box = html.indexOf("<div class=\"runnotes\" id=\"run-notes\">");
+    assertTrue(box > html.indexOf("id=\"convergence\"") && box < html.indexOf("<th>R-hat</th>"),
+        "run notes inside the convergence section, before its table");
+    assertEquals(1, countOf(html, "<li>" + HtmlReport.esc(SyntheticRuns.RUN_NOTE) + "</li>"));
 
     // scenarios: one forest plot each, regional medians as written
     for (String sc : SyntheticRuns.SCENARIOS) {

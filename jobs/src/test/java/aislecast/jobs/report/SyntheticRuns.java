@@ -38,6 +38,9 @@ final class SyntheticRuns {
   static final String[] REGIONS = {"Harbourside", "Millbrook Vale", "Upper Thorn"};
   static final int STORES = 12;
   static final String[] PRODUCTS = {"FZ01", "FZ02", "FZ03", "OK11", "OK12", "PL20"};
+  /** A note the estimate run's run.json carries (as PriorPull writes them). */
+  static final String RUN_NOTE = "prior of sigma_p2: its Inv-Gamma(2, 0.5) scale is 60 times the"
+      + " posterior mean 0.0083, so the prior pushes this variance up";
   static final List<String> SCENARIOS = List.of("cut-fz01-hold", "cut-fz01-nash");
   /** Digests in the estimate run's run.json, shaped as RunIdentity writes them. */
   static final String INPUT_SHA256 =
@@ -132,6 +135,7 @@ final class SyntheticRuns {
     m.put("convergence", Map.of("rhat_max_limit", 1.01, "ess_min_limit", 400.0));
     m.put("configuration", Map.of("sampler", Map.of("chains", CHAINS)));
     m.put("timings", Map.of("total_seconds", 12.5));
+    m.put("notes", List.of(RUN_NOTE));
     List<Map<String, Object>> files = new ArrayList<>();
     INPUT_FILES.forEach((path, bytes) -> files.add(
         Map.of("path", path, "bytes", bytes, "sha256", INPUT_SHA256.replace('3', 'f'))));
