@@ -51,9 +51,12 @@ public final class PriorPull {
             "prior of %s: its Inv-Gamma(%s, %s) scale is %.0f times the posterior mean %.4g,"
                 + " so the prior pushes this variance up; on simulated data (20 stores) the"
                 + " sigma_p2 prior at such a distance made own-price elasticities 4-10%% less"
-                + " elastic than the truth. Consider a smaller priors.variance_scale, near the"
-                + " variance the data show (README, \"Priors that pull\")",
-            names[p], plain(prior.shape()), plain(prior.scale()), ratio, mean));
+                + " elastic than the truth. %s (README, \"Priors that pull\")",
+            names[p], plain(prior.shape()), plain(prior.scale()), ratio, mean,
+            names[p].equals("sigma_p2")
+                ? "Consider priors.price_noise_scale: auto (the scale at the price noise the data"
+                    + " show) or a number near the posterior mean"
+                : "Consider a smaller priors.variance_scale, near the variance the data show"));
       }
     }
     return notes;

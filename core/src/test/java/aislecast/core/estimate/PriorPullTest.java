@@ -65,5 +65,9 @@ class PriorPullTest {
     assertTrue(notes.get(0).startsWith("prior of tau2:"), notes.get(0));
     assertTrue(notes.get(1).startsWith("prior of sigma_xi2:"), notes.get(1));
     assertTrue(notes.get(2).startsWith("prior of sigma_p2:"), notes.get(2));
+    // each says what to change: sigma_p2 has its own data-based setting, the others share one
+    assertTrue(notes.get(2).contains("priors.price_noise_scale: auto"), notes.get(2));
+    assertTrue(notes.get(0).contains("smaller priors.variance_scale"), notes.get(0));
+    assertTrue(!notes.get(0).contains("price_noise_scale"), notes.get(0));
   }
 }

@@ -24,6 +24,11 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  * @param vPsiExtraDf {@code V_psi ~ Inv-Wishart(nu0, S0)} with {@code nu0 = Kpsi +
  *     v_psi_extra_df} (3)
  * @param vPsiScale {@code S0 = v_psi_scale * nu0 * I} (0.1)
+ * @param priceNoiseScale the scale of {@code sigma_p^2}'s inverse-gamma prior alone: null (not
+ *     set) follows {@code variance_scale}; a number; or {@link #AUTO}, the residual variance of a
+ *     first-pass regression of log price on products and cost shifters ({@link
+ *     aislecast.core.estimate.FirstPass}), i.e. where the data put the price noise (README,
+ *     "Priors that pull")
  */
 public record PriorsConfig(
     @JsonProperty("location_sd") double locationSd,
@@ -32,7 +37,11 @@ public record PriorsConfig(
     @JsonProperty("variance_shape") double varianceShape,
     @JsonProperty("variance_scale") double varianceScale,
     @JsonProperty("v_psi_extra_df") double vPsiExtraDf,
-    @JsonProperty("v_psi_scale") double vPsiScale) {
+    @JsonProperty("v_psi_scale") double vPsiScale,
+    @JsonProperty("price_noise_scale") String priceNoiseScale) {
+
+  /** {@code price_noise_scale: auto}. */
+  public static final String AUTO = "auto";
 
   public PriorsConfig {
     positive(locationSd, "priors.location_sd");
@@ -47,6 +56,21 @@ public record PriorsConfig(
       throw new ConfigException("priors.v_psi_extra_df: " + vPsiExtraDf + " must be > -1");
     }
     positive(vPsiScale, "priors.v_psi_scale");
+    if (priceNoiseScale != null && !priceNoiseScale.equals(AUTO)) {
+      double v;
+      try {
+        v = Double.parseDouble(priceNoiseScale);
+      } catch (NumberFormatException e) {
+        throw new ConfigException("priors.price_noise_scale: '" + priceNoiseScale
+            + "' must be a number > 0 or 'auto'");
+      }
+      positive(v, "priors.price_noise_scale");
+    }
+  }
+
+  /** Whether {@code sigma_p^2}'s prior scale comes from the data ({@code auto}). */
+  public boolean priceNoiseAuto() {
+    return AUTO.equals(priceNoiseScale);
   }
 
   @JsonCreator
@@ -57,18 +81,40 @@ public record PriorsConfig(
       @JsonProperty("variance_shape") Double varianceShape,
       @JsonProperty("variance_scale") Double varianceScale,
       @JsonProperty("v_psi_extra_df") Double vPsiExtraDf,
-      @JsonProperty("v_psi_scale") Double vPsiScale) {
+      @JsonProperty("v_psi_scale") Double vPsiScale,
+      @JsonProperty("price_noise_scale") com.fasterxml.jackson.databind.JsonNode priceNoise) {
+    String pn = null;
+    if (priceNoise != null && !priceNoise.isNull()) {
+      if (!priceNoise.isNumber() && !priceNoise.isTextual()) {
+        throw new ConfigException("priors.price_noise_scale: must be a number > 0 or 'auto'");
+      }
+      pn = priceNoise.asText();
+    }
     return new PriorsConfig(or(locationSd, 10.0), or(logScaleMean, -1.0), or(logScaleSd, 1.0),
         or(varianceShape, 2.0), or(varianceScale, 0.5), or(vPsiExtraDf, 3.0),
-        or(vPsiScale, 0.1));
+        or(vPsiScale, 0.1), pn);
   }
 
   public static PriorsConfig defaults() {
-    return fromYaml(null, null, null, null, null, null, null);
+    return fromYaml(null, null, null, null, null, null, null, null);
   }
 
-  /** The model's priors for {@code kd} rows of Gamma and {@code kx} product attributes. */
+  /**
+   * The model's priors for {@code kd} rows of Gamma and {@code kx} product attributes, with
+   * {@code price_noise_scale} not {@code auto}.
+   */
   public Priors toPriors(int kd, int kx) {
+    return toPriors(kd, kx, Double.NaN);
+  }
+
+  /**
+   * The model's priors; {@code firstPassPriceVariance} is the value {@code price_noise_scale:
+   * auto} stands for (ignored otherwise).
+   *
+   * @throws IllegalArgumentException when the setting is {@code auto} and the value is not a
+   *     finite number > 0
+   */
+  public Priors toPriors(int kd, int kx, double firstPassPriceVariance) {
     int kpsi = Heterogeneity.dim(kx);
     double locVar = locationSd * locationSd;
     double[] mean = new double[kd * kpsi];
@@ -85,8 +131,24 @@ public record PriorsConfig(
     }
     Normal location = new Normal(0.0, locVar);
     InvGamma variance = new InvGamma(varianceShape, varianceScale);
+    InvGamma priceNoise = new InvGamma(varianceShape, priceNoiseScale(firstPassPriceVariance));
     return new Priors(kd, kpsi, mean, var, new InvWishart(nu0, s0, kpsi), location, variance,
-        location, location, location, location, variance, variance);
+        location, location, location, location, variance, priceNoise);
+  }
+
+  /** The scale of {@code sigma_p^2}'s prior this setting stands for. */
+  public double priceNoiseScale(double firstPassPriceVariance) {
+    if (priceNoiseScale == null) {
+      return varianceScale;
+    }
+    if (!priceNoiseAuto()) {
+      return Double.parseDouble(priceNoiseScale);
+    }
+    if (!(firstPassPriceVariance > 0) || !Double.isFinite(firstPassPriceVariance)) {
+      throw new IllegalArgumentException("price_noise_scale: auto needs the first-pass price"
+          + " variance, got " + firstPassPriceVariance);
+    }
+    return firstPassPriceVariance;
   }
 
   private static double or(Double v, double d) {

@@ -2,6 +2,7 @@ package aislecast.jobs.estimate;
 
 import aislecast.core.diag.Diagnostics;
 import aislecast.core.diag.ParameterSummary;
+import aislecast.core.estimate.FirstPass;
 import aislecast.core.estimate.InitialGlobals;
 import aislecast.core.estimate.PriorPull;
 import aislecast.core.estimate.SamplerSettings;
@@ -230,7 +231,23 @@ public final class EstimateJob {
       t = System.nanoTime();
       SamplerSettings set = samplerSettings(sc, o.seed());
       Dims dims = problem.dims();
-      Priors priors = config.priors().toPriors(problem.kd(), problem.kx());
+      double firstPass = Double.NaN;
+      if (config.priors().priceNoiseAuto()) {
+        firstPass = FirstPass.priceResidualVariance(problem.stores(), dims.products(), dims.kc());
+        if (!(firstPass > 0) || !Double.isFinite(firstPass)) {
+          throw new RunFailure(RunFailure.BAD_INPUT, "priors.price_noise_scale: auto could not"
+              + " measure the price noise (first-pass regression of log price on products and"
+              + " cost shifters gave " + firstPass + "); set a number instead");
+        }
+      }
+      Priors priors = config.priors().toPriors(problem.kd(), problem.kx(), firstPass);
+      if (config.priors().priceNoiseAuto()) {
+        out.printf(Locale.ROOT, "  prior: sigma_p2 ~ Inv-Gamma(%s, %.4g), the scale from a"
+            + " first-pass regression of log price on products and cost shifters"
+            + " (price_noise_scale: auto)%n",
+            java.math.BigDecimal.valueOf(priors.sigmaP2().shape()).stripTrailingZeros()
+                .toPlainString(), priors.sigmaP2().scale());
+      }
       String key = problem.fingerprint() + "|" + set + "|" + config.priors() + "|sum_group="
           + sc.sumGroup();
       int partitions = sc.partitions() > 0 ? sc.partitions()
@@ -309,7 +326,7 @@ public final class EstimateJob {
       timings.put("write", secondsSince(t));
       timings.put("total", secondsSince(tStart));
       Manifest.write(staging, spark, o, config, identity, set, problem, rec, summaries, names,
-          failures, status, timings, validated, priorNotes);
+          failures, status, timings, validated, priorNotes, priors, config.priors());
       run.commit();
       log.info("published", "estimate: published " + run.target() + (o.replace()
           ? " (replacing the earlier run of this id)" : ""), "run_dir", run.target(), "status",

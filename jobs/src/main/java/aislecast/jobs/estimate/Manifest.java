@@ -2,6 +2,9 @@ package aislecast.jobs.estimate;
 
 import aislecast.core.diag.ParameterSummary;
 import aislecast.core.estimate.SamplerSettings;
+import aislecast.core.globals.InvGamma;
+import aislecast.core.globals.Priors;
+import aislecast.jobs.config.PriorsConfig;
 import aislecast.jobs.config.RunConfig;
 import aislecast.jobs.io.RunIdentity;
 import aislecast.jobs.io.RunJson;
@@ -28,7 +31,7 @@ final class Manifest {
       RunIdentity id, SamplerSettings set, EstimationProblem problem, ChainRecord rec,
       ParameterSummary[] summaries, String[] names, List<String> failures,
       EstimateJob.Status status, Map<String, Double> timings, ValidatedInput validated,
-      List<String> notes) {
+      List<String> notes, Priors priors, PriorsConfig priorsConfig) {
     Map<String, Object> m = header(spark, o, id, status.label);
     Map<String, Object> in = new LinkedHashMap<>();
     in.put("input_rows", validated.summary().inputRows());
@@ -58,6 +61,16 @@ final class Manifest {
     s.put("divergences_sampling", rec.divergentSampling);
     s.put("warm_start", o.warmStart());
     m.put("sampler", s);
+
+    // the variance priors as used (price_noise_scale: auto resolves here)
+    Map<String, Object> pr = new LinkedHashMap<>();
+    pr.put("tau2", invGamma(priors.tau2()));
+    pr.put("sigma_xi2", invGamma(priors.sigmaXi2()));
+    pr.put("sigma_p2", invGamma(priors.sigmaP2()));
+    pr.put("sigma_p2_scale_from", priorsConfig.priceNoiseScale() == null ? "variance_scale"
+        : priorsConfig.priceNoiseAuto() ? "auto: first-pass regression of log price on products"
+            + " and cost shifters" : "price_noise_scale");
+    m.put("variance_priors", pr);
 
     Map<String, Object> conv = new LinkedHashMap<>();
     double worst = Double.NaN;
@@ -116,6 +129,13 @@ final class Manifest {
     m.put("configuration_file", o.confSource());
     m.put("resumed", o.resume());
     return m;
+  }
+
+  private static Map<String, Object> invGamma(InvGamma g) {
+    Map<String, Object> out = new LinkedHashMap<>();
+    out.put("shape", g.shape());
+    out.put("scale", g.scale());
+    return out;
   }
 
   private static Object finite(double v) {

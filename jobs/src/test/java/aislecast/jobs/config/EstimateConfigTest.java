@@ -57,6 +57,27 @@ class EstimateConfigTest {
   }
 
   @Test
+  void priceNoiseScaleIsANumberOrAutoAndFollowsVarianceScaleWhenAbsent() {
+    Priors unset = RunConfigLoader.parse("priors:\n  variance_scale: 0.3\n", "t.yaml").priors()
+        .toPriors(2, 1);
+    assertEquals(0.3, unset.sigmaP2().scale(), 0.0);
+    RunConfig set = RunConfigLoader.parse("priors:\n  price_noise_scale: 0.02\n", "t.yaml");
+    assertEquals(0.02, set.priors().toPriors(2, 1).sigmaP2().scale(), 0.0);
+    assertEquals(0.5, set.priors().toPriors(2, 1).sigmaXi2().scale(), 0.0, "the others keep 0.5");
+    PriorsConfig auto = RunConfigLoader.parse("priors:\n  price_noise_scale: auto\n", "t.yaml")
+        .priors();
+    assertTrue(auto.priceNoiseAuto());
+    assertEquals(0.0123, auto.toPriors(2, 1, 0.0123).sigmaP2().scale(), 0.0);
+    assertEquals(0.5, auto.toPriors(2, 1, 0.0123).tau2().scale(), 0.0);
+    assertThrows(IllegalArgumentException.class, () -> auto.toPriors(2, 1));
+    for (String bad : new String[] {"-0.1", "often", "[1, 2]"}) {
+      ConfigException e = assertThrows(ConfigException.class,
+          () -> RunConfigLoader.parse("priors:\n  price_noise_scale: " + bad + "\n", "x.yaml"));
+      assertTrue(e.getMessage().contains("priors.price_noise_scale"), e.getMessage());
+    }
+  }
+
+  @Test
   void badValuesNameTheirKey() {
     ConfigException chains = assertThrows(ConfigException.class,
         () -> RunConfigLoader.parse("sampler:\n  chains: 1\n", "x.yaml"));

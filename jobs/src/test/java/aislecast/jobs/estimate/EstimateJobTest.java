@@ -290,6 +290,48 @@ class EstimateJobTest {
         + " 100) scale is")), notes.toString());
     assertTrue(console.toString().contains("note: prior of sigma_p2:"), console.toString());
     assertTrue(strict.get("notes").isArray(), "run.json always has a notes list");
+    assertEquals(100.0, loose.at("/variance_priors/sigma_p2/scale").asDouble(), 0.0);
+    assertEquals("variance_scale", loose.at("/variance_priors/sigma_p2_scale_from").asText());
+
+    // the same loose scale, but sigma_p2's taken from the data: the scale is the residual
+    // variance of log price on product dummies and log cost (commons-math3 least squares on the
+    // simulator's own rows), and the note for sigma_p2 goes away
+    Path auto = out.resolve("auto.yaml");
+    Files.writeString(auto, Files.readString(pulled) + "  price_noise_scale: auto\n");
+    StringWriter autoConsole = new StringWriter();
+    String[] withAuto = base.clone();
+    withAuto[6] = auto.toString();
+    assertEquals(0, Main.commandLine().setOut(new PrintWriter(autoConsole, true))
+        .execute(concat(withAuto, "--run-id", "f3", "--allow-unconverged")));
+    JsonNode fromData = new ObjectMapper().readTree(out.resolve("f3/run.json").toFile());
+    double expected = leastSquaresLogPriceVariance(
+        DemandSimulator.simulate(SimSettings.demo().withSizes(STORES, 6, 5, 2, 2, 30)));
+    assertEquals(expected, fromData.at("/variance_priors/sigma_p2/scale").asDouble(),
+        1e-9 * expected);
+    assertEquals(100.0, fromData.at("/variance_priors/sigma_xi2/scale").asDouble(), 0.0);
+    assertTrue(fromData.at("/variance_priors/sigma_p2_scale_from").asText().startsWith("auto"));
+    List<String> autoNotes = new java.util.ArrayList<>();
+    fromData.get("notes").forEach(n -> autoNotes.add(n.asText()));
+    assertTrue(autoNotes.stream().noneMatch(n -> n.startsWith("prior of sigma_p2")),
+        autoNotes.toString());
+    assertTrue(autoConsole.toString().contains("prior: sigma_p2 ~ Inv-Gamma(2, "),
+        autoConsole.toString());
+  }
+
+  /** Residual variance of log price on product dummies and log unit cost (commons-math3). */
+  private static double leastSquaresLogPriceVariance(aislecast.core.sim.SimulatedData sim) {
+    int nJ = sim.products();
+    double[] y = new double[sim.rows];
+    double[][] x = new double[sim.rows][nJ + 1];
+    for (int i = 0; i < sim.rows; i++) {
+      y[i] = Math.log(sim.price[i]);
+      x[i][sim.rowProduct[i]] = 1.0;
+      x[i][nJ] = Math.log(sim.unitCost[i]);
+    }
+    var ols = new org.apache.commons.math3.stat.regression.OLSMultipleLinearRegression();
+    ols.setNoIntercept(true);
+    ols.newSampleData(y, x);
+    return ols.estimateErrorVariance();
   }
 
   private static String[] concat(String[] a, String... b) {
