@@ -130,7 +130,7 @@ class ScenariosJobTest {
   }
 
   @Test
-  void everyTableHasItsDocumentedColumns() {
+  void everyTableHasItsDocumentedColumns() throws java.io.IOException {
     assertEquals(Arrays.asList(ScenarioTables.PRODUCT_DETAIL_SCHEMA.fieldNames()).subList(1, 24),
         Arrays.asList(table(ScenarioTables.PRODUCT_DETAIL).columns()).subList(0, 23));
     assertEquals(List.of("store_id", "region", "chain", "draw", "scope", "owner", "metric",
@@ -145,15 +145,11 @@ class ScenariosJobTest {
     assertEquals(Arrays.asList(ScenarioTables.ELASTICITY_SCHEMA.fieldNames()),
         Arrays.asList(table(ScenarioTables.ELASTICITIES).columns()));
     assertTrue(Files.exists(Path.of(runDir, "run.json")));
-    try {
-      JsonNode notes = new ObjectMapper().readTree(Path.of(runDir, "run.json").toFile())
-          .get("notes");
-      List<String> texts = new ArrayList<>();
-      notes.forEach(n -> texts.add(n.asText()));
-      assertTrue(texts.contains("posterior run: " + TruthPosterior.NOTE), texts.toString());
-    } catch (java.io.IOException e) {
-      throw new java.io.UncheckedIOException(e);
-    }
+    JsonNode notes = new ObjectMapper().readTree(Path.of(runDir, "run.json").toFile())
+        .get("notes");
+    List<String> texts = new ArrayList<>();
+    notes.forEach(n -> texts.add(n.asText()));
+    assertTrue(texts.contains("posterior run: " + TruthPosterior.NOTE), texts.toString());
     assertTrue(Files.isDirectory(Path.of(runDir, "validation/rejects")));
     // 6 stores x 6 draws x 7 scenarios, no failure: every (scenario, store, draw) has rows
     assertEquals(6L * 6 * 7, table(ScenarioTables.PRODUCT_DETAIL)
