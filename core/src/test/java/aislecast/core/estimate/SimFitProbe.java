@@ -289,16 +289,31 @@ public final class SimFitProbe {
       // (HOLDH=gamma: Gamma only; row0 / row1: one row of Gamma only)
       int kp = f.dims.kpsi();
       String hold = System.getenv("HOLDH");
+      // HOLDH_FROM=<DUMP prefix>: hold at chain 0's last kept draw of an earlier run instead
+      double[] heldGamma = f.truth.gammaPsi();
+      double[] heldV = f.truth.vPsi();
+      if (System.getenv("HOLDH_FROM") != null) {
+        var lines = java.nio.file.Files.readAllLines(java.nio.file.Path.of(System.getenv("HOLDH_FROM") + "_globals.csv"));
+        String last = null;
+        for (String l : lines.subList(1, lines.size())) if (l.startsWith("0,")) last = l;
+        String[] v = last.split(",");
+        heldGamma = new double[f.truth.gammaPsi().length];
+        for (int i = 0; i < heldGamma.length; i++) heldGamma[i] = Double.parseDouble(v[2 + i]);
+        heldV = new double[kp * kp];
+        int q = 2 + heldGamma.length;
+        for (int i = 0; i < kp; i++) for (int k = 0; k <= i; k++) { double x = Double.parseDouble(v[q++]); heldV[i * kp + k] = x; heldV[k * kp + i] = x; }
+        System.out.println("holding Gamma " + java.util.Arrays.toString(heldGamma));
+      }
       double[] tight = priors.gammaPsiVar().clone();
       double[] mean = priors.gammaPsiMean().clone();
       for (int i = 0; i < tight.length; i++) {
         boolean row0 = i < kp;
         if (hold.equals("row0") && !row0 || hold.equals("row1") && row0) continue;
         tight[i] = 1e-10;
-        mean[i] = f.truth.gammaPsi()[i];
+        mean[i] = heldGamma[i];
       }
       double nu = 1e7;
-      double[] sv = f.truth.vPsi().clone();
+      double[] sv = heldV.clone();
       for (int i = 0; i < sv.length; i++) sv[i] *= nu + kp + 1;
       priors = priors.withGammaPsi(mean, tight);
       if (hold.equals("1")) {
@@ -349,6 +364,32 @@ public final class SimFitProbe {
       System.out.printf("%-22s truth %8.3f mean %8.3f [%8.3f %8.3f] %s rhat %.3f essb %.0f%n", names[p], truth[p], s.mean(), s.q05(), s.q95(), in ? " " : "*", s.rhat(), s.essBulk());
     }
     slowDirections(res.globalDraws(), names, 25);
+    if (System.getenv("PSIESS") != null) {
+      // per psi component: bulk ESS of each store's draws (median and smallest over stores) and
+      // of the stores' mean psi, i.e. how fast the locals themselves mix
+      int kp = f.dims.kpsi();
+      int ns = res.stores().size();
+      StringBuilder b = new StringBuilder("psi bulk ESS per component (store median / min; stores' mean):");
+      for (int k = 0; k < kp; k++) {
+        double[] per = new double[ns];
+        double[][] mean = new double[4][];
+        for (int si = 0; si < ns; si++) {
+          var blk = res.stores().get(si);
+          double[][] ch = new double[4][blk.keptDraws];
+          for (int c = 0; c < 4; c++) {
+            if (mean[c] == null) mean[c] = new double[blk.keptDraws];
+            for (int i = 0; i < blk.keptDraws; i++) {
+              ch[c][i] = blk.psiDraws[c][i * kp + k];
+              mean[c][i] += ch[c][i] / ns;
+            }
+          }
+          per[si] = Diagnostics.essBulk(ch);
+        }
+        java.util.Arrays.sort(per);
+        b.append(String.format(" %d: %.0f/%.0f; %.0f", k, per[ns / 2], per[0], Diagnostics.essBulk(mean)));
+      }
+      System.out.println(b);
+    }
     if (System.getenv("PSIZ") != null) {
       // per store and component: z of the true psi in the pooled draws; with the globals held at
       // the truth the stores are independent and each z should look like a standard normal draw
