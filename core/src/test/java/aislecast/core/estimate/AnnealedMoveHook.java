@@ -31,6 +31,7 @@ final class AnnealedMoveHook implements InProcessRunner.SweepHook {
   private final int kx;
   private final long seed;
   private double[] scale;
+  private final boolean tasteOnly = System.getenv("ATASTE") != null;
   private double[][] bMatrix;
   long proposed;
   long accepted;
@@ -93,7 +94,8 @@ final class AnnealedMoveHook implements InProcessRunner.SweepHook {
         for (int m = 0; m <= q; m++) {
           v += l[q * kpsi + m] * z[m];
         }
-        shift[q] = scale[c] * v;
+        // ATASTE=1: along the log L_kk axes only, each with sd = scale
+        shift[q] = tasteOnly ? (q >= 2 && q < 2 + kx ? scale[c] * z[q] : 0.0) : scale[c] * v;
       }
       double[] bShift = new double[nProd];
       for (int j = 0; j < nProd; j++) {
