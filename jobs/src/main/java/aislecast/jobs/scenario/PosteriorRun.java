@@ -40,8 +40,11 @@ public final class PosteriorRun {
   private final String status;
   private final List<String> notes;
 
+  private final double rhatLimit;
+
   private PosteriorRun(String dir, long seed, Integer generatedShopperDraws, String status,
-      List<String> notes) {
+      List<String> notes, double rhatLimit) {
+    this.rhatLimit = rhatLimit;
     this.dir = dir;
     this.seed = seed;
     this.generatedShopperDraws = generatedShopperDraws;
@@ -76,8 +79,11 @@ public final class PosteriorRun {
     JsonNode r = root.path("configuration").path("sampler").path("shopper_draws");
     List<String> notes = new ArrayList<>();
     root.path("notes").forEach(n -> notes.add(n.asText()));
+    JsonNode limit = root.path("convergence").path("rhat_max_limit");
     return new PosteriorRun(dir, seedNode.asLong(), r.canConvertToInt() ? r.asInt() : null,
-        root.path("status").asText(null), notes);
+        root.path("status").asText(null), notes,
+        limit.isNumber() ? limit.asDouble()
+            : aislecast.jobs.config.SamplerConfig.DEFAULT_RHAT_MAX);
   }
 
   public String dir() {
@@ -97,6 +103,11 @@ public final class PosteriorRun {
   /** Notes the estimation run recorded in run.json (e.g. a variance prior pulling); may be empty. */
   public List<String> notes() {
     return notes;
+  }
+
+  /** The estimation run's R-hat limit ({@code convergence.rhat_max_limit}; 1.01 if absent). */
+  public double rhatLimit() {
+    return rhatLimit;
   }
 
   /** Status recorded in run.json (e.g. ok, not_converged), or null. */

@@ -165,6 +165,11 @@ public final class ScenariosJob {
           .mode(SaveMode.ErrorIfExists).partitionBy("scenario")
           .parquet(dir + "/" + ScenarioTables.STORE_CHECKS);
       seconds.put("summaries", secondsSince(t3));
+      // do the chains agree on what the scenario outputs say? (not only on the parameters)
+      long t4 = System.nanoTime();
+      List<OutputConvergence.Check> outputChecks = OutputConvergence.of(spark, totals);
+      notes.addAll(OutputConvergence.notes(outputChecks, posterior.rhatLimit()));
+      seconds.put("output_convergence", secondsSince(t4));
       seconds.put("total", secondsSince(t0));
 
       Map<String, Object> m = RunManifest.header(spark, id, o.runId(), o.input(),
@@ -177,6 +182,8 @@ public final class ScenariosJob {
       m.put("draws", sel.size());
       m.put("draws_available", sel.available());
       m.put("product_detail_rows", detailCount);
+      m.put("output_convergence", outputChecks.stream().map(OutputConvergence.Check::toJson)
+          .toList());
       m.put("notes", notes);
       m.put("timings_seconds", seconds);
       RunManifest.write(spark, dir, m);
@@ -190,6 +197,11 @@ public final class ScenariosJob {
         if (t != null) {
           out.println("  " + t);
         }
+      }
+      out.println("  convergence of the outputs (posterior run's R-hat limit "
+          + String.format(Locale.ROOT, "%.3f", posterior.rhatLimit()) + "):");
+      for (OutputConvergence.Check k : outputChecks) {
+        out.println("    " + OutputConvergence.line(k));
       }
       for (String n : notes) {
         out.println("  note: " + n);

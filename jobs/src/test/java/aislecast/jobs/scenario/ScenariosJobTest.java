@@ -150,6 +150,15 @@ class ScenariosJobTest {
     List<String> texts = new ArrayList<>();
     notes.forEach(n -> texts.add(n.asText()));
     assertTrue(texts.contains("posterior run: " + TruthPosterior.NOTE), texts.toString());
+    // the outputs' own convergence: one check per scenario and metric; with 3 draws per chain
+    // R-hat cannot be computed, and a note says so
+    JsonNode outputChecks = new ObjectMapper().readTree(Path.of(runDir, "run.json").toFile())
+        .get("output_convergence");
+    assertEquals(7 * 3, outputChecks.size());
+    assertEquals(2, outputChecks.get(0).get("chains").asInt());
+    assertEquals(3, outputChecks.get(0).get("draws_per_chain").asInt());
+    assertTrue(texts.stream().anyMatch(t -> t.startsWith("the convergence of 21 of 21 scenario"
+        + " outputs cannot be checked")), texts.toString());
     assertTrue(Files.isDirectory(Path.of(runDir, "validation/rejects")));
     // 6 stores x 6 draws x 7 scenarios, no failure: every (scenario, store, draw) has rows
     assertEquals(6L * 6 * 7, table(ScenarioTables.PRODUCT_DETAIL)
