@@ -48,6 +48,7 @@ final class HtmlReport {
       ".cautions{border-left:5px solid #b26b00;background:#fff6e5;padding:8px 16px;margin:12px 0}",
       ".cautions li{margin:4px 0}",
       ".notes{border-left:5px solid #6a7786;background:#eef1f5;padding:8px 16px;margin:12px 0}",
+      ".flagline{color:#8a1c1c;font-weight:bold}.okline{color:#1d5e2a}",
       ".runnotes{border-left:5px solid #b07a00;background:#fbf4e4;padding:8px 16px;margin:12px 0}",
       "table{border-collapse:collapse;margin:6px 0 12px;font-size:12.5px}",
       "th,td{border:1px solid #d8dde5;padding:3px 7px;text-align:right;vertical-align:top}",
@@ -396,6 +397,7 @@ final class HtmlReport {
       image(Charts.forest("Scenario " + s.scenario() + ": portfolio revenue change",
           "revenue change against base (currency per week)", bands),
           "Forest plot of portfolio revenue change by store for scenario " + s.scenario());
+      outputConvergence(d, s.scenario());
       if (!s.regions().isEmpty()) {
         h.append("<table><tr><th class=\"t\">region</th><th>draws</th><th>mean change</th>")
             .append("<th>5%</th><th>25%</th><th>median</th><th>75%</th><th>95%</th>")
@@ -408,6 +410,39 @@ final class HtmlReport {
           h.append("<td>").append(pct(b.probGain())).append("</td></tr>\n");
         }
         h.append("</table>\n");
+      }
+    }
+  }
+
+  /**
+   * The scenarios run's check of its own outputs ({@code output_convergence} in its run.json):
+   * whether the chains agree on the portfolio's revenue change summed over stores. Flagged when
+   * R-hat is above the estimation run's limit or unknown.
+   */
+  private void outputConvergence(ReportData d, String scenario) {
+    for (RunTables.RunFolder f : d.runs()) {
+      JsonNode m = f.manifest();
+      if (m == null) {
+        continue;
+      }
+      for (JsonNode c : m.path("output_convergence")) {
+        if (!scenario.equals(c.path("scenario").asText()) || !"revenue".equals(
+            c.path("metric").asText())) {
+          continue;
+        }
+        double rhat = c.path("rhat").isNumber() ? c.path("rhat").asDouble() : Double.NaN;
+        double ess = c.path("ess_bulk").isNumber() ? c.path("ess_bulk").asDouble() : Double.NaN;
+        boolean bad = !(rhat <= d.rhatMax()) && !Double.isNaN(d.rhatMax()) || Double.isNaN(rhat);
+        h.append("<p class=\"").append(bad ? "flagline" : "okline").append("\">Do the chains")
+            .append(" agree on the portfolio's revenue change over all stores? R-hat ")
+            .append(Double.isNaN(rhat) ? "n/a" : num(rhat)).append(", bulk ESS ")
+            .append(Double.isNaN(ess) ? "n/a" : String.format(Locale.ROOT, "%.0f", ess))
+            .append(" (")
+            .append(c.path("chains").asInt()).append(" chains x ")
+            .append(c.path("draws_per_chain").asInt()).append(" draws). ")
+            .append(bad ? "Not yet: read these bands as indicative only." : "Yes, within the"
+                + " run's limit.").append("</p>\n");
+        return;
       }
     }
   }

@@ -127,6 +127,15 @@ class ReportCommandTest {
     for (String sc : SyntheticRuns.SCENARIOS) {
       assertTrue(html.contains("<h3>Scenario " + sc + "</h3>"), sc);
     }
+    // each scenario says whether the chains agree on its revenue total (run.json of the run)
+    assertEquals(1, countOf(html, "<p class=\"flagline\">Do the chains agree on the portfolio's"
+        + " revenue change over all stores? R-hat 1.210, bulk ESS 14 (4 chains x "), html);
+    assertEquals(1, countOf(html, "<p class=\"okline\">Do the chains agree on the portfolio's"
+        + " revenue change over all stores? R-hat 1.004"));
+    assertTrue(html.indexOf("R-hat 1.210") > html.indexOf("<h3>Scenario "
+        + SyntheticRuns.SCENARIOS.get(0) + "</h3>") && html.indexOf("R-hat 1.210")
+        < html.indexOf("<h3>Scenario " + SyntheticRuns.SCENARIOS.get(1) + "</h3>"),
+        "the flag sits under its own scenario");
     runs.regionMedian.forEach((k, v) ->
         assertTrue(html.contains("<td>" + HtmlReport.num(v) + "</td>"), k + " median " + v));
 

@@ -207,6 +207,14 @@ final class SyntheticRuns {
     m.put("status", "ok");
     m.put("posterior", estimate.toString());
     m.put("scenarios", SCENARIOS);
+    // the first scenario's revenue total disagrees between chains, the second's agrees
+    m.put("output_convergence", List.of(
+        Map.of("scenario", SCENARIOS.get(0), "metric", "revenue", "chains", CHAINS,
+            "draws_per_chain", DRAWS, "rhat", 1.21, "ess_bulk", 14.0),
+        Map.of("scenario", SCENARIOS.get(0), "metric", "units", "chains", CHAINS,
+            "draws_per_chain", DRAWS, "rhat", 1.002, "ess_bulk", 700.0),
+        Map.of("scenario", SCENARIOS.get(1), "metric", "revenue", "chains", CHAINS,
+            "draws_per_chain", DRAWS, "rhat", 1.004, "ess_bulk", 650.0)));
     m.put("notes", List.of());
     json(scenarios, m);
   }
