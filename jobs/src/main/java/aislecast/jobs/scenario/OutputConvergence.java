@@ -85,22 +85,26 @@ final class OutputConvergence {
   }
 
   /**
-   * A note for each check whose R-hat is above {@code limit}, and one note when some cannot be
-   * computed (fewer than two chains or too few draws per chain).
+   * One note per scenario naming its outputs whose R-hat is above {@code limit} (checks come in
+   * scenario order), and one note when some cannot be computed (fewer than two chains or too few
+   * draws per chain).
    */
   static List<String> notes(List<Check> checks, double limit) {
     List<String> notes = new ArrayList<>();
+    Map<String, List<String>> above = new java.util.LinkedHashMap<>();
     int unknown = 0;
     for (Check k : checks) {
       if (Double.isNaN(k.rhat())) {
         unknown++;
       } else if (!(k.rhat() <= limit)) {
-        notes.add(String.format(Locale.ROOT, "scenario %s: the portfolio's %s change has R-hat"
-            + " %s over the posterior draws used (limit %.3f): the chains disagree about it, so"
-            + " its bands are not reliable yet", k.scenario(), k.metric(),
-            fmt(k.rhat(), "%.3f"), limit));
+        above.computeIfAbsent(k.scenario(), x -> new ArrayList<>())
+            .add(k.metric() + " (R-hat " + fmt(k.rhat(), "%.3f") + ")");
       }
     }
+    above.forEach((scenario, metrics) -> notes.add(String.format(Locale.ROOT,
+        "scenario %s: the chains disagree about the portfolio's %s change over the posterior"
+            + " draws used (R-hat limit %.3f), so those bands are not reliable yet", scenario,
+        String.join(", ", metrics), limit)));
     if (unknown > 0) {
       notes.add(String.format(Locale.ROOT, "the convergence of %d of %d scenario outputs cannot be"
           + " checked: R-hat needs at least 2 chains with %d draws each among the posterior draws"

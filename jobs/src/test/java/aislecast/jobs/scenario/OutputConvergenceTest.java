@@ -93,8 +93,17 @@ class OutputConvergenceTest {
     // iid chains of 50 draws give R-hat around 1.01 by chance, so the limit here is 1.1
     List<String> notes = OutputConvergence.notes(checks, 1.1);
     assertEquals(1, notes.size(), notes.toString());
-    assertTrue(notes.get(0).startsWith("scenario apart: the portfolio's revenue change has R-hat"),
-        notes.get(0));
+    assertEquals(String.format(java.util.Locale.ROOT, "scenario apart: the chains disagree about"
+        + " the portfolio's revenue (R-hat %.3f) change over the posterior draws used (R-hat limit"
+        + " 1.100), so those bands are not reliable yet", a.rhat()), notes.get(0));
+    // two metrics of one scenario above the limit make one note naming both
+    List<OutputConvergence.Check> two = List.of(
+        new OutputConvergence.Check("s", "margin", 4, 50, 1.2, 20),
+        new OutputConvergence.Check("s", "units", 4, 50, 1.3, 20),
+        new OutputConvergence.Check("t", "units", 4, 50, 1.001, 900));
+    assertEquals(List.of("scenario s: the chains disagree about the portfolio's margin (R-hat"
+        + " 1.200), units (R-hat 1.300) change over the posterior draws used (R-hat limit 1.010),"
+        + " so those bands are not reliable yet"), OutputConvergence.notes(two, 1.01));
     assertTrue(OutputConvergence.line(a).startsWith("apart, portfolio revenue change over all"
         + " stores: R-hat "), OutputConvergence.line(a));
   }
