@@ -4,8 +4,8 @@ import aislecast.core.model.StoreData;
 import java.util.List;
 import org.ejml.data.DMatrixRMaj;
 import org.ejml.dense.row.CommonOps_DDRM;
-import org.ejml.dense.row.factory.LinearSolverFactory_DDRM;
-import org.ejml.interfaces.linsol.LinearSolverDense;
+import org.ejml.dense.row.SingularOps_DDRM;
+import org.ejml.dense.row.linsol.svd.SolvePseudoInverseSvd_DDRM;
 
 /**
  * A first-pass least-squares fit of the price equation without its demand-shock term: log price
@@ -77,8 +77,8 @@ public final class FirstPass {
     }
 
     double residualVariance() {
-      // drop columns the data never touch, then solve by QR with column pivoting (EJML),
-      // which also gives the rank
+      // drop columns the data never touch, then solve by the SVD pseudo-inverse (EJML), whose
+      // decomposition also gives the rank
       int[] keep = new int[p];
       int q = 0;
       for (int i = 0; i < p; i++) {
@@ -94,13 +94,14 @@ public final class FirstPass {
           a.set(i, k, xtx[keep[i] * p + keep[k]]);
         }
       }
-      LinearSolverDense<DMatrixRMaj> solver = LinearSolverFactory_DDRM.pseudoInverse(true);
-      if (!solver.setA(a.copy())) {
+      SolvePseudoInverseSvd_DDRM solver = new SolvePseudoInverseSvd_DDRM();
+      if (!solver.setA(a)) {
         return Double.NaN;
       }
       DMatrixRMaj beta = new DMatrixRMaj(q, 1);
       solver.solve(b, beta);
-      int rank = org.ejml.dense.row.SingularOps_DDRM.rank(a.copy());
+      int rank = SingularOps_DDRM.rank(solver.getDecomposition(), SingularOps_DDRM.singularThreshold(
+          solver.getDecomposition()));
       double fitted = CommonOps_DDRM.dot(beta, b);
       double df = n - rank;
       return df > 0 ? Math.max(yty - fitted, 0.0) / df : Double.NaN;
