@@ -70,4 +70,44 @@ class PriorPullTest {
     assertTrue(notes.get(0).contains("smaller priors.variance_scale"), notes.get(0));
     assertTrue(!notes.get(0).contains("price_noise_scale"), notes.get(0));
   }
+
+  /** Every parameter's posterior mean 1, but the V_psi diagonal entries given as {k, mean}. */
+  private static ParameterSummary[] withV(double[]... entries) {
+    ParameterSummary[] s = summaries(1, 1, 1);
+    for (double[] e : entries) {
+      int p = java.util.Arrays.asList(NAMES).indexOf("V_psi[" + (int) e[0] + "," + (int) e[0] + "]");
+      double m = e[1];
+      s[p] = new ParameterSummary(m, 0.1, m, m, m, 1.0, 1000, 1000, 0.01);
+    }
+    return s;
+  }
+
+  @Test
+  void flagsHierarchyVariancesThePriorSupplies() {
+    // default V_psi ~ Inv-Wishart(nu0 = 8 + 3, 0.1 nu0 I): S0_kk = 1.1; with n = 20 stores the
+    // conditional mean is (S0 + sum e e') / (nu0 + n - p - 1) = (1.1 + SS) / 22 (BDA3, appendix
+    // A), so a posterior mean m means the prior supplies 1.1 / (22 m). The simulated 20-store
+    // run's means (README): V_psi[0,0] 0.072 -> 69%, V_psi[2,2] 0.179 -> 28%
+    List<String> notes = PriorPull.hierarchyNotes(Priors.defaults(2, 3), NAMES,
+        withV(new double[] {0, 0.072}, new double[] {2, 0.179}), 20);
+    assertEquals(1, notes.size(), notes.toString());
+    assertTrue(notes.get(0).startsWith("prior of V_psi[0,0]: the Inv-Wishart prior supplies"
+        + " about 69% of its posterior mean 0.072 (prior scale S0_kk 1.1, 20 stores)"),
+        notes.get(0));
+    assertTrue(notes.get(0).contains("smaller priors.v_psi_scale"), notes.get(0));
+    // the same means over 100 stores: 1.1 / (102 x 0.072) = 15%, nothing to say
+    assertEquals(List.of(), PriorPull.hierarchyNotes(Priors.defaults(2, 3), NAMES,
+        withV(new double[] {0, 0.072}, new double[] {2, 0.179}), 100));
+  }
+
+  @Test
+  void hierarchyLimitIsStrict() {
+    // share exactly one half at m = 1.1 / (0.5 x 22) = 0.1
+    assertEquals(List.of(), PriorPull.hierarchyNotes(Priors.defaults(2, 3), NAMES,
+        withV(new double[] {5, 0.1}), 20));
+    List<String> notes = PriorPull.hierarchyNotes(Priors.defaults(2, 3), NAMES,
+        withV(new double[] {5, 0.0999}), 20);
+    assertEquals(1, notes.size(), notes.toString());
+    assertTrue(notes.get(0).startsWith("prior of V_psi[5,5]:"), notes.get(0));
+  }
 }

@@ -311,7 +311,10 @@ public final class EstimateJob {
           : o.allowUnconverged() ? Status.UNCONVERGED_ALLOWED : Status.NOT_CONVERGED;
       // variance priors far above where the posterior puts the variance pull on weakly
       // identified directions (README, "Priors that pull"): say so in run.json and on the console
-      List<String> priorNotes = PriorPull.varianceNotes(priors, names, summaries);
+      List<String> priorNotes = new ArrayList<>(
+          PriorPull.varianceNotes(priors, names, summaries));
+      priorNotes.addAll(
+          PriorPull.hierarchyNotes(priors, names, summaries, problem.stores().size()));
       timings.put("diagnostics", secondsSince(t));
 
       // 7. Outputs, written whole into the staging folder, then published.

@@ -272,10 +272,11 @@ class EstimateJobTest {
     assertEquals("not_converged", strict.get("status").asText());
     assertTrue(strict.get("convergence").get("failures").size() > 0);
 
-    // the second run also sets a variance prior scale far above any variance these data show,
-    // so run.json and the console carry PriorPull's note for sigma_p2
+    // the second run also sets variance prior scales far above any variance these data show,
+    // so run.json and the console carry PriorPull's notes for sigma_p2 and the V_psi diagonal
     Path pulled = out.resolve("pulled.yaml");
-    Files.writeString(pulled, Files.readString(conf) + "priors:\n  variance_scale: 100\n");
+    Files.writeString(pulled, Files.readString(conf)
+        + "priors:\n  variance_scale: 100\n  v_psi_scale: 100\n");
     StringWriter console = new StringWriter();
     String[] withPrior = base.clone();
     withPrior[6] = pulled.toString();
@@ -289,6 +290,8 @@ class EstimateJobTest {
     assertTrue(notes.stream().anyMatch(n -> n.startsWith("prior of sigma_p2: its Inv-Gamma(2,"
         + " 100) scale is")), notes.toString());
     assertTrue(console.toString().contains("note: prior of sigma_p2:"), console.toString());
+    assertTrue(notes.stream().anyMatch(n -> n.startsWith("prior of V_psi[0,0]: the Inv-Wishart"
+        + " prior supplies about")), notes.toString());
     assertTrue(strict.get("notes").isArray(), "run.json always has a notes list");
     assertEquals(100.0, loose.at("/variance_priors/sigma_p2/scale").asDouble(), 0.0);
     assertEquals("variance_scale", loose.at("/variance_priors/sigma_p2_scale_from").asText());
@@ -297,7 +300,8 @@ class EstimateJobTest {
     // variance of log price on product dummies and log cost (commons-math3 least squares on the
     // simulator's own rows), and the note for sigma_p2 goes away
     Path auto = out.resolve("auto.yaml");
-    Files.writeString(auto, Files.readString(pulled) + "  price_noise_scale: auto\n");
+    Files.writeString(auto, Files.readString(conf)
+        + "priors:\n  variance_scale: 100\n  price_noise_scale: auto\n");
     StringWriter autoConsole = new StringWriter();
     String[] withAuto = base.clone();
     withAuto[6] = auto.toString();
