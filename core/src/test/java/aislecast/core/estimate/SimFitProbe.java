@@ -320,6 +320,16 @@ public final class SimFitProbe {
         priors = priors.withVPsi(new aislecast.core.globals.InvWishart(nu, sv, kp));
       }
     }
+    if (System.getenv("HOLDV") != null) {
+      // diagnostic: V_psi held at diag(HOLDV, comma-separated, the last value repeated) by a
+      // point-mass Inv-Wishart; Gamma stays free (e.g. tiny taste entries: stores share tastes)
+      String[] v = System.getenv("HOLDV").split(",");
+      int kp = f.dims.kpsi();
+      double nu = 1e7;
+      double[] sv = new double[kp * kp];
+      for (int i = 0; i < kp; i++) sv[i * kp + i] = Double.parseDouble(v[Math.min(i, v.length - 1)]) * (nu + kp + 1);
+      priors = priors.withVPsi(new aislecast.core.globals.InvWishart(nu, sv, kp));
+    }
     // diagnostics: FROM_TRUTH=1 starts every chain at the simulation's truth (FROM_TRUTH=locals:
     // only the locals), FIXG=1 holds the globals there and prints the locals' statistics
     String from = System.getenv("FROM_TRUTH");
