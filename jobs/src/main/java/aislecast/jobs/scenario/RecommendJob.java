@@ -50,7 +50,7 @@ public final class RecommendJob {
   static final String RECOMMENDATION_DRAWS = "recommendation_draws";
 
   /** The name recommend's output convergence checks carry in the {@code scenario} field. */
-  static final String OUTPUT_NAME = "recommended prices";
+  public static final String OUTPUT_NAME = "recommended prices";
 
   private RecommendJob() {}
 
