@@ -69,6 +69,19 @@ class OutputConvergenceTest {
         pairs.stream().mapToInt(p -> p[1]).toArray(), pairs.size());
   }
 
+  /** Per chain c, the sum over stores of {@code v[store][c][draw]} at the draws {@code kept[c]}. */
+  private static double[][] summed(double[][][] v, int[][] kept) {
+    double[][] out = new double[kept.length][kept[0].length];
+    for (int c = 0; c < kept.length; c++) {
+      for (int i = 0; i < kept[c].length; i++) {
+        for (double[][] store : v) {
+          out[c][i] += store[c][kept[c][i]];
+        }
+      }
+    }
+    return out;
+  }
+
   private static List<OutputConvergence.Check> checks(List<Row> totals,
       PosteriorRun.Selection sel) {
     return OutputConvergence.of(spark,
@@ -202,13 +215,7 @@ class OutputConvergenceTest {
       }
     }
     Collections.shuffle(rows, new Random(7));
-    int[][] kept = {{0, 1, 3, 4, 5}, {0, 1, 2, 3, 6}};
-    double[][] want = new double[2][5];
-    for (int c = 0; c < 2; c++) {
-      for (int i = 0; i < 5; i++) {
-        want[c][i] = v[0][c][kept[c][i]] + v[1][c][kept[c][i]];
-      }
-    }
+    double[][] want = summed(v, new int[][] {{0, 1, 3, 4, 5}, {0, 1, 2, 3, 6}});
     List<OutputConvergence.Check> checks = checks(rows, all(2, 7, 8));
     assertEquals(1, checks.size());
     OutputConvergence.Check k = checks.get(0);
@@ -267,13 +274,7 @@ class OutputConvergenceTest {
       }
     }
     // chain 1 keeps draws 0, 1, 3, 4; chain 0 is cut to its first 4
-    int[][] kept = {{0, 1, 2, 3}, {0, 1, 3, 4}};
-    double[][] units = new double[2][4];
-    for (int c = 0; c < 2; c++) {
-      for (int i = 0; i < 4; i++) {
-        units[c][i] = v[0][c][kept[c][i]] + v[1][c][kept[c][i]];
-      }
-    }
+    double[][] units = summed(v, new int[][] {{0, 1, 2, 3}, {0, 1, 3, 4}});
     List<OutputConvergence.Check> checks = OutputConvergence.of(spark,
         OutputConvergence.recommendationChanges(spark, spark.createDataFrame(rows, wide),
             "recommended prices"), all(2, 5, 5));
