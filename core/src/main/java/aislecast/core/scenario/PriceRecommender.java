@@ -91,6 +91,7 @@ public final class PriceRecommender {
     int dropped = 0;
     int nonPositive = 0;
     List<BaseDraw> used = new ArrayList<>();
+    List<Integer> usedAt = new ArrayList<>();
     for (int d = 0; d < draws.size(); d++) {
       BaseDraw b = draws.get(d);
       if (b.market() != market) {
@@ -104,6 +105,7 @@ public final class PriceRecommender {
       }
       nonPositive += b.nonPositiveCosts();
       used.add(b);
+      usedAt.add(d);
     }
     int k = portfolio.length;
     String[] ids = new String[k];
@@ -138,7 +140,7 @@ public final class PriceRecommender {
       return new Recommendation(market.storeId(), ids, current, current.clone(), lower, upper,
           floor, meanCost, Double.NaN, Double.NaN, Bands.of(new double[0], 0),
           Bands.of(new double[0], 0),
-          emptyBands(k), 0, dropped, nonPositive, 0, 0, false, notes);
+          emptyBands(k), Recommendation.PerDraw.NONE, 0, dropped, nonPositive, 0, 0, false, notes);
     }
     w.init(used);
 
@@ -150,7 +152,7 @@ public final class PriceRecommender {
       return new Recommendation(market.storeId(), ids, current, current.clone(), lower, upper,
           floor, meanCost, Double.NaN, Double.NaN, Bands.of(new double[0], 0),
           Bands.of(new double[0], 0),
-          emptyBands(k), n, dropped, nonPositive, w.evaluations, 1, false, notes);
+          emptyBands(k), Recommendation.PerDraw.NONE, n, dropped, nonPositive, w.evaluations, 1, false, notes);
     }
     boolean clamped = false;
     for (int q = 0; q < k; q++) {
@@ -216,15 +218,22 @@ public final class PriceRecommender {
     }
     Bands[] unitsChange = new Bands[k];
     double[] du = new double[n];
+    double[] duTotal = new double[n];
     for (int q = 0; q < k; q++) {
       for (int u = 0; u < n; u++) {
         du[u] = best.units[u * k + q] - atCurrent.units[u * k + q];
+        duTotal[u] += du[u];
       }
       unitsChange[q] = Bands.of(du, n);
     }
+    int[] at = new int[n];
+    for (int u = 0; u < n; u++) {
+      at[u] = usedAt.get(u);
+    }
     return new Recommendation(market.storeId(), ids, current, x.clone(), lower, upper, floor,
         meanCost, atCurrent.objective, best.objective, Bands.of(dm, n), Bands.of(dr, n),
-        unitsChange, n, dropped, nonPositive, w.evaluations, rejected, converged, notes);
+        unitsChange, new Recommendation.PerDraw(at, dm, dr, duTotal), n, dropped, nonPositive,
+        w.evaluations, rejected, converged, notes);
   }
 
   private static Bands[] emptyBands(int k) {

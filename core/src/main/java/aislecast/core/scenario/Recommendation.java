@@ -18,6 +18,8 @@ import java.util.List;
  * @param marginChange per-draw change of portfolio margin, recommended minus current
  * @param revenueChange per-draw change of portfolio revenue
  * @param unitsChange per product, per-draw change of its units
+ * @param perDraw the portfolio's changes draw by draw (what the bands summarise), with each
+ *     value's position in the draw list given to the recommender
  * @param drawsUsed draws in the objective
  * @param drawsDropped draws whose costs could not be recovered (left out, counted here)
  * @param nonPositiveCosts first-order-condition costs <= 0, summed over products and used draws
@@ -30,8 +32,28 @@ public record Recommendation(String storeId, String[] productIds, double[] curre
     double[] recommendedPrice, double[] lower, double[] upper, double[] costFloor,
     double[] meanCost,
     double objectiveCurrent, double objectiveRecommended, Bands marginChange, Bands revenueChange,
-    Bands[] unitsChange, int drawsUsed, int drawsDropped, int nonPositiveCosts, int evaluations,
+    Bands[] unitsChange, PerDraw perDraw, int drawsUsed, int drawsDropped, int nonPositiveCosts, int evaluations,
     int rejectedCandidates, boolean converged, List<String> notes) {
+
+  /**
+   * The portfolio's changes at the recommended prices against current prices, one entry per
+   * used draw (empty when no draw could be used).
+   *
+   * @param draw position of each used draw in the list of draws given to the recommender
+   *     (draws whose costs could not be recovered are missing)
+   * @param marginChange portfolio margin change per used draw
+   * @param revenueChange portfolio revenue change per used draw
+   * @param unitsChange portfolio units change (summed over its products) per used draw
+   */
+  public record PerDraw(int[] draw, double[] marginChange, double[] revenueChange,
+      double[] unitsChange) {
+    static final PerDraw NONE = new PerDraw(new int[0], new double[0], new double[0],
+        new double[0]);
+
+    public int size() {
+      return draw.length;
+    }
+  }
 
   /** Percent change of each recommended price against current. */
   public double[] priceChangePercent() {

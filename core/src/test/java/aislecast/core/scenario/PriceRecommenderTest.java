@@ -241,6 +241,59 @@ class PriceRecommenderTest {
     assertEquals(COST[1], r.meanCost()[1], 0.0);
   }
 
+  /**
+   * The per-draw changes at the recommended prices (what the output-convergence check of {@code
+   * recommend} reads): with the middle of three draws failing its cost recovery, the used draws are
+   * positions 0 and 2, and each one's portfolio margin, revenue and units change equals the
+   * closed-form logit computed here (shares by {@link #logitShares}, not the project's market
+   * model; known costs, rivals hold); the bands summarise exactly these values.
+   */
+  @Test
+  void perDrawChangesSkipDroppedDrawsAndMatchClosedFormLogit() {
+    BaseMarket m = logitMarket(new String[] {"own", "own", "b", "c"}, PRICE, COST);
+    ScenarioEvaluator ev = new ScenarioEvaluator(5, 4);
+    double[][] deltas = {DELTA, {0.9, 1.4, 0.7, 0.6}, {1.2, 1.1, 0.9, 0.4}};
+    List<BaseDraw> draws = new ArrayList<>();
+    for (double[] d : deltas) {
+      draws.add(ev.base(m, logitPsi(), d));
+    }
+    BaseDraw ok = draws.get(1);
+    double[] noCost = new double[4];
+    java.util.Arrays.fill(noCost, Double.NaN);
+    draws.set(1, new BaseDraw(m, ok.psi(), ok.delta(), noCost, ok.costNonPositive(),
+        new aislecast.core.equilibrium.MarginalCosts.Info(false, 0, "test: not recovered"),
+        ok.outcome()));
+    Recommendation r = new PriceRecommender(5, 4).recommend(draws,
+        RecommendSettings.defaults().with(20, Response.HOLD, Double.NaN));
+    assertEquals(1, r.drawsDropped());
+    Recommendation.PerDraw pd = r.perDraw();
+    assertEquals(List.of(0, 2), java.util.Arrays.stream(pd.draw()).boxed().toList());
+    double[] rec = PRICE.clone();
+    rec[0] = r.recommendedPrice()[0];
+    rec[1] = r.recommendedPrice()[1];
+    assertTrue(rec[0] != PRICE[0] || rec[1] != PRICE[1], "the search should move a price");
+    for (int u = 0; u < 2; u++) {
+      double[] d = deltas[pd.draw()[u]];
+      double[] s0 = logitShares(d, PRICE);
+      double[] s1 = logitShares(d, rec);
+      double margin = 0;
+      double revenue = 0;
+      double units = 0;
+      for (int p = 0; p < 2; p++) {
+        margin += 5000 * ((rec[p] - COST[p]) * s1[p] - (PRICE[p] - COST[p]) * s0[p]);
+        revenue += 5000 * (rec[p] * s1[p] - PRICE[p] * s0[p]);
+        units += 5000 * (s1[p] - s0[p]);
+      }
+      assertEquals(margin, pd.marginChange()[u], 1e-9 * 5000, "margin, draw " + u);
+      assertEquals(revenue, pd.revenueChange()[u], 1e-9 * 5000, "revenue, draw " + u);
+      assertEquals(units, pd.unitsChange()[u], 1e-9 * 5000, "units, draw " + u);
+    }
+    assertEquals((pd.marginChange()[0] + pd.marginChange()[1]) / 2, r.marginChange().mean(),
+        1e-12 * 5000);
+    assertEquals((pd.revenueChange()[0] + pd.revenueChange()[1]) / 2, r.revenueChange().mean(),
+        1e-12 * 5000);
+  }
+
   /** Guard-rails bind: a tight max move keeps every price within current x (1 +- move). */
   @Test
   void guardRailsBind() {

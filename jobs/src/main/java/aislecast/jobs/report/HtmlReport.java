@@ -5,6 +5,7 @@ import aislecast.jobs.report.ReportData.ElasticityMatrix;
 import aislecast.jobs.report.ReportData.ParameterRow;
 import aislecast.jobs.report.ReportData.ScenarioBands;
 import aislecast.jobs.report.ReportData.Table;
+import aislecast.jobs.scenario.RecommendJob;
 import com.fasterxml.jackson.databind.JsonNode;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import com.fasterxml.jackson.databind.SerializationFeature;
@@ -397,7 +398,7 @@ final class HtmlReport {
       image(Charts.forest("Scenario " + s.scenario() + ": portfolio revenue change",
           "revenue change against base (currency per week)", bands),
           "Forest plot of portfolio revenue change by store for scenario " + s.scenario());
-      outputConvergence(d, s.scenario());
+      outputConvergence(d, s.scenario(), "revenue");
       if (!s.regions().isEmpty()) {
         h.append("<table><tr><th class=\"t\">region</th><th>draws</th><th>mean change</th>")
             .append("<th>5%</th><th>25%</th><th>median</th><th>75%</th><th>95%</th>")
@@ -415,18 +416,19 @@ final class HtmlReport {
   }
 
   /**
-   * The scenarios run's check of its own outputs ({@code output_convergence} in its run.json):
-   * whether the chains agree on the portfolio's revenue change summed over stores. Flagged when
-   * R-hat is above the estimation run's limit or unknown.
+   * A scenarios or recommend run's check of its own outputs ({@code output_convergence} in its
+   * run.json): whether the chains agree on the portfolio's change in {@code metric} summed over
+   * stores for output {@code scenario}. Flagged when R-hat is above the estimation run's limit or
+   * unknown.
    */
-  private void outputConvergence(ReportData d, String scenario) {
+  private void outputConvergence(ReportData d, String scenario, String metric) {
     for (RunTables.RunFolder f : d.runs()) {
       JsonNode m = f.manifest();
       if (m == null) {
         continue;
       }
       for (JsonNode c : m.path("output_convergence")) {
-        if (!scenario.equals(c.path("scenario").asText()) || !"revenue".equals(
+        if (!scenario.equals(c.path("scenario").asText()) || !metric.equals(
             c.path("metric").asText())) {
           continue;
         }
@@ -434,7 +436,8 @@ final class HtmlReport {
         double ess = c.path("ess_bulk").isNumber() ? c.path("ess_bulk").asDouble() : Double.NaN;
         boolean bad = !(rhat <= d.rhatMax()) && !Double.isNaN(d.rhatMax()) || Double.isNaN(rhat);
         h.append("<p class=\"").append(bad ? "flagline" : "okline").append("\">Do the chains")
-            .append(" agree on the portfolio's revenue change over all stores? R-hat ")
+            .append(" agree on the portfolio's ").append(esc(metric))
+            .append(" change over all stores? R-hat ")
             .append(Double.isNaN(rhat) ? "n/a" : num(rhat)).append(", bulk ESS ")
             .append(Double.isNaN(ess) ? "n/a" : String.format(Locale.ROOT, "%.0f", ess))
             .append(" (")
@@ -483,6 +486,7 @@ final class HtmlReport {
         .append(" revenue and units columns are the whole portfolio of the store, against the")
         .append(" base period; the 5% and 95% columns bound 90% of the posterior draws. Showing ")
         .append(t.rows().size()).append(" of ").append(t.totalRows()).append(" rows.</p>\n");
+    outputConvergence(d, RecommendJob.OUTPUT_NAME, "margin");
     h.append("<div class=\"scroll\"><table>\n<tr>");
     for (String c : t.columns()) {
       h.append("<th class=\"t\">").append(esc(c.replace('_', ' '))).append("</th>");

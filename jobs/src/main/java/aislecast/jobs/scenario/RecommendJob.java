@@ -35,15 +35,22 @@ import org.apache.spark.sql.types.DataType;
 import org.apache.spark.sql.types.DataTypes;
 import org.apache.spark.sql.types.StructField;
 import org.apache.spark.sql.types.StructType;
+import org.apache.spark.storage.StorageLevel;
 
 /**
  * {@code aislecast recommend}: per store, the portfolio prices within guard-rails that maximise
  * the posterior mean (or a quantile) of the portfolio margin change, with the competitors'
  * response ({@link PriceRecommender}); one Spark task per group of stores. Writes {@code
- * recommendations/} and {@code run.json} in a run folder published whole.
+ * recommendations/}, the per-draw changes behind them ({@code recommendation_draws/}) and {@code
+ * run.json} (with the convergence of those changes over the chains, {@link OutputConvergence}) in
+ * a run folder published whole.
  */
 public final class RecommendJob {
   static final String RECOMMENDATIONS = "recommendations";
+  static final String RECOMMENDATION_DRAWS = "recommendation_draws";
+
+  /** The name recommend's output convergence checks carry in the {@code scenario} field. */
+  public static final String OUTPUT_NAME = "recommended prices";
 
   private RecommendJob() {}
 
@@ -98,8 +105,26 @@ public final class RecommendJob {
       f("units_change_mean", DataTypes.DoubleType, false),
       f("evaluations", DataTypes.IntegerType, false)));
 
+  /**
+   * One row per store with a portfolio product and selected posterior draw: the portfolio's
+   * margin, revenue and units change at the recommended prices against current prices in that
+   * draw (what {@code recommendations/} summarises), or nulls with {@code used} false when the
+   * draw was left out of the store's recommendation (its shares could not be inverted, its costs
+   * not recovered, or an equilibrium at current prices failed).
+   */
+  static final StructType DRAWS_SCHEMA = DataTypes.createStructType(List.of(
+      f("store_id", DataTypes.StringType, false), f("region", DataTypes.StringType, true),
+      f("chain", DataTypes.IntegerType, false), f("draw", DataTypes.IntegerType, false),
+      f("used", DataTypes.BooleanType, false),
+      f("margin_change", DataTypes.DoubleType, true),
+      f("revenue_change", DataTypes.DoubleType, true),
+      f("units_change", DataTypes.DoubleType, true)));
+
   public record Result(String runDir, int stores, int draws, long rows,
       Map<String, Double> seconds) {}
+
+  /** One store's recommendation rows and per-draw rows. */
+  record StoreResult(List<Row> rows, List<Row> draws) implements java.io.Serializable {}
 
   public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
     return run(spark, config, o, RunLog.plain("recommend", out));
@@ -171,18 +196,33 @@ public final class RecommendJob {
       Response response = o.response();
       JavaRDD<StoreWork> work = ScenarioInputs.withDraws(spark, prep.stores(), posterior, sel,
           prep.catalog().attributes());
-      JavaRDD<Row> rows = work.flatMap(w -> recommend(w, settings(maxMove, response, quantile),
-          objective).iterator());
+      // kept: the optimisation runs once and feeds both tables
+      JavaRDD<StoreResult> results = work.map(w -> recommend(w,
+          settings(maxMove, response, quantile), objective))
+          .persist(StorageLevel.MEMORY_AND_DISK());
       // repartition, not coalesce: the optimisation stays one task per store partition and only
       // the finished rows meet in one file, sorted so the file does not depend on task timing
       try (TaskProgress progress = TaskProgress.start(spark, log, "optimise")) {
-        spark.createDataFrame(rows, SCHEMA).repartition(1)
+        spark.createDataFrame(results.flatMap(r -> r.rows().iterator()), SCHEMA).repartition(1)
             .sortWithinPartitions("store_id", "product_id").write().mode(SaveMode.ErrorIfExists)
             .parquet(dir + "/" + RECOMMENDATIONS);
         progress.complete();
       }
+      spark.createDataFrame(results.flatMap(r -> r.draws().iterator()), DRAWS_SCHEMA)
+          .repartition(1).sortWithinPartitions("store_id", "chain", "draw").write()
+          .mode(SaveMode.ErrorIfExists).parquet(dir + "/" + RECOMMENDATION_DRAWS);
+      results.unpersist(false);
       long count = spark.read().parquet(dir + "/" + RECOMMENDATIONS).count();
       seconds.put("optimise", secondsSince(t1));
+      // do the chains agree on what the recommendation says? (not only on the parameters)
+      long t2 = System.nanoTime();
+      List<OutputConvergence.Check> outputChecks = OutputConvergence.of(spark,
+          OutputConvergence.recommendationChanges(spark,
+              spark.read().parquet(dir + "/" + RECOMMENDATION_DRAWS), OUTPUT_NAME), sel);
+      List<String> notes = new ArrayList<>(prep.notes());
+      notes.addAll(OutputConvergence.notes(outputChecks, posterior.rhatLimit(), sel.size(),
+          OutputConvergence.Outputs.RECOMMEND));
+      seconds.put("output_convergence", secondsSince(t2));
       seconds.put("total", secondsSince(t0));
       Map<String, Object> m = RunManifest.header(spark, id, o.runId(), o.input(),
           o.posterior(), posterior);
@@ -196,16 +236,24 @@ public final class RecommendJob {
       m.put("draws", sel.size());
       m.put("draws_available", sel.available());
       m.put("rows", count);
-      m.put("notes", prep.notes());
+      m.put("output_convergence", outputChecks.stream().map(OutputConvergence.Check::toJson)
+          .toList());
+      m.put("notes", notes);
       m.put("timings_seconds", seconds);
       RunManifest.write(spark, dir, m);
       run.commit();
       log.info("published", "Outputs in " + run.target() + ":", "run_dir", run.target(),
           "replaced", o.replace());
       out.println("  " + RECOMMENDATIONS);
+      out.println("  " + RECOMMENDATION_DRAWS);
       out.println("  validation/rejects");
       out.println("  " + RunManifest.RUN_JSON);
-      for (String n : prep.notes()) {
+      out.println("  convergence of the outputs (posterior run's R-hat limit "
+          + String.format(Locale.ROOT, "%.3f", posterior.rhatLimit()) + "):");
+      for (OutputConvergence.Check k : outputChecks) {
+        out.println("    " + OutputConvergence.line(k));
+      }
+      for (String n : notes) {
         out.println("  note: " + n);
       }
       out.flush();
@@ -224,8 +272,11 @@ public final class RecommendJob {
     return (System.nanoTime() - t0) / 1e9;
   }
 
-  /** One store's recommendation rows (none when the store stocks no portfolio product). */
-  static List<Row> recommend(StoreWork w, RecommendSettings settings, String objective) {
+  /**
+   * One store's recommendation rows and per-draw rows (none when the store stocks no portfolio
+   * product; per-draw rows with {@code used} false for every draw when no draw could be used).
+   */
+  static StoreResult recommend(StoreWork w, RecommendSettings settings, String objective) {
     BaseMarket market = w.market();
     int j = w.products();
     List<Row> rows = new ArrayList<>();
@@ -234,13 +285,14 @@ public final class RecommendJob {
       any |= market.inPortfolio(owner);
     }
     if (!any) {
-      return rows;
+      return new StoreResult(rows, List.of());
     }
     ScenarioEvaluator ev = new ScenarioEvaluator(w.shoppers(), j, EquilibriumSettings.defaults(),
         false);
     BaseUtilities inverter = new BaseUtilities(w.shoppers(), j);
     double[] observed = BaseUtilities.observedShares(w.units(), w.marketSize());
     List<BaseDraw> draws = new ArrayList<>();
+    List<Integer> inverted = new ArrayList<>(); // the StoreWork draw of each entry of draws
     int skipped = 0;
     for (int d = 0; d < w.draws(); d++) {
       double[] delta = new double[j];
@@ -250,9 +302,10 @@ public final class RecommendJob {
         continue;
       }
       draws.add(ev.base(market, w.psi()[d], delta));
+      inverted.add(d);
     }
     if (draws.isEmpty()) {
-      return rows;
+      return new StoreResult(rows, drawRows(w, null, inverted));
     }
     Recommendation r = new PriceRecommender(w.shoppers(), j).recommend(draws, settings);
     Bands mc = r.marginChange();
@@ -270,6 +323,29 @@ public final class RecommendJob {
           r.rejectedCandidates(), mc.mean(), mc.q05(), mc.q50(), mc.q95(), mc.probPositive(),
           r.revenueChange().mean(), units, r.evaluations()));
     }
-    return rows;
+    return new StoreResult(rows, drawRows(w, r.perDraw(), inverted));
+  }
+
+  /**
+   * One row per selected draw of the store: the recommendation's per-draw changes where it used
+   * the draw, nulls elsewhere.
+   *
+   * @param perDraw null when no draw reached the recommender
+   * @param inverted the StoreWork draw of each draw given to the recommender
+   */
+  private static List<Row> drawRows(StoreWork w, Recommendation.PerDraw perDraw,
+      List<Integer> inverted) {
+    Row[] byDraw = new Row[w.draws()];
+    for (int u = 0; perDraw != null && u < perDraw.size(); u++) {
+      int d = inverted.get(perDraw.draw()[u]);
+      byDraw[d] = RowFactory.create(w.storeId(), w.region(), w.chain()[d], w.draw()[d], true,
+          perDraw.marginChange()[u], perDraw.revenueChange()[u], perDraw.unitsChange()[u]);
+    }
+    List<Row> out = new ArrayList<>(w.draws());
+    for (int d = 0; d < w.draws(); d++) {
+      out.add(byDraw[d] != null ? byDraw[d] : RowFactory.create(w.storeId(), w.region(),
+          w.chain()[d], w.draw()[d], false, null, null, null));
+    }
+    return out;
   }
 }

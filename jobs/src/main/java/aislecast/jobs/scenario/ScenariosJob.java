@@ -167,8 +167,10 @@ public final class ScenariosJob {
       seconds.put("summaries", secondsSince(t3));
       // do the chains agree on what the scenario outputs say? (not only on the parameters)
       long t4 = System.nanoTime();
-      List<OutputConvergence.Check> outputChecks = OutputConvergence.of(spark, totals);
-      notes.addAll(OutputConvergence.notes(outputChecks, posterior.rhatLimit()));
+      List<OutputConvergence.Check> outputChecks = OutputConvergence.of(spark,
+          OutputConvergence.scenarioChanges(totals), sel);
+      notes.addAll(OutputConvergence.notes(outputChecks, posterior.rhatLimit(), sel.size(),
+          OutputConvergence.Outputs.SCENARIOS));
       seconds.put("output_convergence", secondsSince(t4));
       seconds.put("total", secondsSince(t0));
 

@@ -143,6 +143,11 @@ class ReportCommandTest {
     assertTrue(html.contains("<p>Store ST01 (" + SyntheticRuns.region(0) + ")"));
     assertTrue(html.contains("with one of 2 more"));
 
+    // the recommended prices say whether the chains agree on their margin total
+    assertEquals(1, countOf(html, "<p class=\"flagline\">Do the chains agree on the portfolio's"
+        + " margin change over all stores? R-hat 1.310, bulk ESS 11 (4 chains x "), html);
+    assertTrue(html.indexOf("margin change over all stores? R-hat 1.310")
+        > html.indexOf("<h2 id=\"recommendations\">"), "under the recommended prices");
     // every recommendation row, and the cautions
     assertEquals(runs.recommendationRows(), countOf(html, "<td class=\"t\">Fizzwell</td>"));
     assertTrue(html.contains(HtmlReport.CAUTIONS_HEADING));

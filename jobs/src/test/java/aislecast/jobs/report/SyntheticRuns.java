@@ -1,5 +1,6 @@
 package aislecast.jobs.report;
 
+import aislecast.jobs.scenario.RecommendJob;
 import com.fasterxml.jackson.databind.ObjectMapper;
 import java.io.IOException;
 import java.nio.file.Files;
@@ -254,6 +255,12 @@ final class SyntheticRuns {
     m.put("run_id", "rec-1");
     m.put("status", "ok");
     m.put("posterior", estimate.toString());
+    // the chains disagree on the recommended prices' margin total
+    m.put("output_convergence", List.of(
+        Map.of("scenario", RecommendJob.OUTPUT_NAME, "metric", "margin", "chains", CHAINS,
+            "draws_per_chain", DRAWS, "draws_left_out", 0, "rhat", 1.31, "ess_bulk", 11.0),
+        Map.of("scenario", RecommendJob.OUTPUT_NAME, "metric", "revenue", "chains", CHAINS,
+            "draws_per_chain", DRAWS, "draws_left_out", 0, "rhat", 1.003, "ess_bulk", 600.0)));
     json(recommend, m);
   }
 

@@ -4,6 +4,7 @@ import static org.junit.jupiter.api.Assertions.assertEquals;
 import static org.junit.jupiter.api.Assertions.assertFalse;
 import static org.junit.jupiter.api.Assertions.assertTrue;
 
+import aislecast.core.diag.Diagnostics;
 import aislecast.core.scenario.Response;
 import aislecast.core.sim.DemandSimulator;
 import aislecast.core.sim.SimSettings;
@@ -28,6 +29,7 @@ import java.util.ArrayList;
 import java.util.Arrays;
 import java.util.HashMap;
 import java.util.List;
+import java.util.Locale;
 import java.util.Map;
 import org.apache.spark.sql.Dataset;
 import org.apache.spark.sql.Row;
@@ -157,6 +159,7 @@ class ScenariosJobTest {
     assertEquals(7 * 3, outputChecks.size());
     assertEquals(2, outputChecks.get(0).get("chains").asInt());
     assertEquals(3, outputChecks.get(0).get("draws_per_chain").asInt());
+    assertEquals(0, outputChecks.get(0).get("draws_left_out").asInt(), "no failure here");
     assertTrue(texts.stream().anyMatch(t -> t.startsWith("the convergence of 21 of 21 scenario"
         + " outputs cannot be checked")), texts.toString());
     assertTrue(Files.isDirectory(Path.of(runDir, "validation/rejects")));
@@ -365,6 +368,104 @@ class ScenariosJobTest {
       assertEquals(rec.agg(org.apache.spark.sql.functions.sum("recommended_price")).first()
           .getDouble(0), rs.getDouble(2), 1e-9);
     }
+    // 3 draws spread over 2 chains (2 and 1): the outputs' convergence cannot be checked
+    JsonNode m = new ObjectMapper().readTree(Path.of(res.runDir(), "run.json").toFile());
+    assertEquals(3, m.get("output_convergence").size());
+    for (JsonNode k : m.get("output_convergence")) {
+      assertEquals(RecommendJob.OUTPUT_NAME, k.get("scenario").asText());
+      assertEquals(1, k.get("draws_per_chain").asInt());
+      assertTrue(k.get("rhat").isNull());
+    }
+    assertTrue(texts(m.get("notes")).contains("the convergence of 3 of 3 recommendation outputs"
+        + " cannot be checked: R-hat needs at least 2 chains with 4 draws each among the"
+        + " posterior draws used (--draws)"), m.get("notes").toString());
+  }
+
+  private static List<String> texts(JsonNode array) {
+    List<String> out = new ArrayList<>();
+    array.forEach(n -> out.add(n.asText()));
+    return out;
+  }
+
+  /**
+   * recommend checks the convergence of its own outputs: on a 2 x 6-draw posterior with known
+   * own costs (so prices move), run.json's output_convergence holds, per metric, R-hat and bulk
+   * ESS equal to those computed here from the written recommendation_draws (read with DuckDB,
+   * summed over stores per chain and draw, handed to Diagnostics, which DiagnosticsTest checks
+   * against ArviZ); recommendation_draws is what recommendations/ summarises. The posterior
+   * run's R-hat limit is set to 0.5, which no finite R-hat can meet (split R-hat is at least
+   * sqrt((n - 1) / n) for n draws per split chain, as the between-chain variance is >= 0;
+   * Gelman et al., Bayesian Data Analysis 3rd ed. section 11.4, from memory), so the note must
+   * appear.
+   */
+  @Test
+  void recommendChecksTheConvergenceOfItsOwnOutputs() throws Exception {
+    Path post = tmp.resolve("post-2x6");
+    TruthPosterior.write(spark, sim, post, 2, 6, SEED + 1, 0.5);
+    RecommendJob.Options o = new RecommendJob.Options(input.toString(),
+        tmp.resolve("rec").toString(), "r2", post.toString(), 1, 0, List.of(portfolio), 0.05,
+        Double.NaN, Response.HOLD, "unit_cost");
+    StringWriter console = new StringWriter();
+    RecommendJob.Result res = RecommendJob.run(spark, RunConfig.defaults(), o,
+        new PrintWriter(console));
+    JsonNode m = new ObjectMapper().readTree(Path.of(res.runDir(), "run.json").toFile());
+    JsonNode checks = m.get("output_convergence");
+    assertEquals(3, checks.size(), checks.toString());
+    String draws = res.runDir() + "/" + RecommendJob.RECOMMENDATION_DRAWS + "/*.parquet";
+    List<String> above = new ArrayList<>();
+    try (Connection c = DriverManager.getConnection("jdbc:duckdb:");
+        Statement st = c.createStatement()) {
+      try (ResultSet rs = st.executeQuery("SELECT count(*), count(DISTINCT store_id),"
+          + " sum(CASE WHEN used THEN 0 ELSE 1 END) FROM read_parquet('" + draws + "')")) {
+        rs.next();
+        long stores = rs.getLong(2);
+        assertEquals(stores * 12, rs.getLong(1), "one row per store and draw");
+        assertEquals(0, rs.getLong(3), "every draw used in this data");
+      }
+      for (JsonNode k : checks) {
+        String metric = k.get("metric").asText();
+        double[][] x = new double[2][6];
+        try (ResultSet rs = st.executeQuery("SELECT chain, draw, sum(" + metric + "_change)"
+            + " FROM read_parquet('" + draws + "') GROUP BY chain, draw ORDER BY chain, draw")) {
+          int n = 0;
+          while (rs.next()) {
+            x[rs.getInt(1)][rs.getInt(2)] = rs.getDouble(3);
+            n++;
+          }
+          assertEquals(12, n);
+        }
+        assertEquals(RecommendJob.OUTPUT_NAME, k.get("scenario").asText());
+        assertEquals(2, k.get("chains").asInt());
+        assertEquals(6, k.get("draws_per_chain").asInt());
+        assertEquals(0, k.get("draws_left_out").asInt());
+        double rhat = Diagnostics.rankRhat(x);
+        assertTrue(Double.isFinite(rhat), metric + ": the changes vary over draws");
+        assertEquals(rhat, k.get("rhat").asDouble(), 1e-12 * rhat, metric);
+        assertEquals(Diagnostics.essBulk(x), k.get("ess_bulk").asDouble(),
+            1e-9 * Diagnostics.essBulk(x), metric);
+        above.add(String.format(Locale.ROOT, "%s (R-hat %.3f)", metric, rhat));
+        assertTrue(console.toString().contains(RecommendJob.OUTPUT_NAME + ", portfolio " + metric
+            + " change over all stores: R-hat " + String.format(Locale.ROOT, "%.3f", rhat)),
+            console.toString());
+      }
+      // the per-draw table is what recommendations/ summarises
+      try (ResultSet rs = st.executeQuery("SELECT d.store_id, avg(d.margin_change),"
+          + " max(r.margin_change_mean) FROM read_parquet('" + draws + "') d JOIN read_parquet('"
+          + res.runDir() + "/" + RecommendJob.RECOMMENDATIONS + "/*.parquet') r"
+          + " ON d.store_id = r.store_id GROUP BY d.store_id")) {
+        int n = 0;
+        while (rs.next()) {
+          assertEquals(rs.getDouble(3), rs.getDouble(2), 1e-9 * Math.max(1,
+              Math.abs(rs.getDouble(3))), rs.getString(1));
+          n++;
+        }
+        assertTrue(n > 0);
+      }
+    }
+    assertEquals("recommended prices: the chains disagree about the portfolio's "
+        + String.join(", ", above) + " change over the posterior draws used (R-hat limit 0.500),"
+        + " so those bands are not reliable yet", texts(m.get("notes")).get(
+            texts(m.get("notes")).size() - 1), m.get("notes").toString());
   }
 
   /**

@@ -32,6 +32,12 @@ final class TruthPosterior {
 
   static void write(SparkSession spark, SimulatedData sim, Path dir, int chains,
       int drawsPerChain, long seed) throws Exception {
+    write(spark, sim, dir, chains, drawsPerChain, seed, Double.NaN);
+  }
+
+  /** @param rhatLimit the run's {@code convergence.rhat_max_limit}, NaN to leave it out */
+  static void write(SparkSession spark, SimulatedData sim, Path dir, int chains,
+      int drawsPerChain, long seed, double rhatLimit) throws Exception {
     String[] names = sim.psiNames();
     int kpsi = names.length;
     Random rng = new Random(seed);
@@ -52,6 +58,8 @@ final class TruthPosterior {
         .parquet(dir.resolve("posterior/store_draws").toString());
     Files.writeString(dir.resolve("run.json"), "{\"command\": \"estimate\", \"status\": \"ok\","
         + " \"seed\": " + seed + ", \"configuration\": {\"sampler\": {\"shopper_draws\": "
-        + sim.settings.draws() + "}}, \"notes\": [\"" + NOTE + "\"]}");
+        + sim.settings.draws() + "}}, \"notes\": [\"" + NOTE + "\"]"
+        + (Double.isNaN(rhatLimit) ? "" : ", \"convergence\": {\"rhat_max_limit\": " + rhatLimit
+            + "}") + "}");
   }
 }
