@@ -123,8 +123,14 @@ public final class RecommendJob {
   public record Result(String runDir, int stores, int draws, long rows,
       Map<String, Double> seconds) {}
 
-  /** One store's recommendation rows and per-draw rows. */
-  record StoreResult(List<Row> rows, List<Row> draws) implements java.io.Serializable {}
+  /**
+   * One store's recommendation rows and per-draw rows.
+   *
+   * @param unrecommended whether the store stocks portfolio products but no posterior draw's
+   *     base shares could be inverted, so it has no recommendation rows
+   */
+  record StoreResult(List<Row> rows, List<Row> draws, boolean unrecommended)
+      implements java.io.Serializable {}
 
   public static Result run(SparkSession spark, RunConfig config, Options o, PrintWriter out) {
     return run(spark, config, o, RunLog.plain("recommend", out));
@@ -211,7 +217,6 @@ public final class RecommendJob {
       spark.createDataFrame(results.flatMap(r -> r.draws().iterator()), DRAWS_SCHEMA)
           .repartition(1).sortWithinPartitions("store_id", "chain", "draw").write()
           .mode(SaveMode.ErrorIfExists).parquet(dir + "/" + RECOMMENDATION_DRAWS);
-      results.unpersist(false);
       long count = spark.read().parquet(dir + "/" + RECOMMENDATIONS).count();
       seconds.put("optimise", secondsSince(t1));
       // do the chains agree on what the recommendation says? (not only on the parameters)
@@ -220,8 +225,14 @@ public final class RecommendJob {
           OutputConvergence.recommendationChanges(spark,
               spark.read().parquet(dir + "/" + RECOMMENDATION_DRAWS), OUTPUT_NAME), sel);
       List<String> notes = new ArrayList<>(prep.notes());
+      String missing = unrecommendedNote(results.filter(StoreResult::unrecommended)
+          .map(r -> r.draws().get(0).getString(0)).collect());
+      if (missing != null) {
+        notes.add(missing);
+      }
       notes.addAll(OutputConvergence.notes(outputChecks, posterior.rhatLimit(), sel.size(),
           OutputConvergence.Outputs.RECOMMEND));
+      results.unpersist(false);
       seconds.put("output_convergence", secondsSince(t2));
       seconds.put("total", secondsSince(t0));
       Map<String, Object> m = RunManifest.header(spark, id, o.runId(), o.input(),
@@ -285,7 +296,7 @@ public final class RecommendJob {
       any |= market.inPortfolio(owner);
     }
     if (!any) {
-      return new StoreResult(rows, List.of());
+      return new StoreResult(rows, List.of(), false);
     }
     ScenarioEvaluator ev = new ScenarioEvaluator(w.shoppers(), j, EquilibriumSettings.defaults(),
         false);
@@ -305,7 +316,7 @@ public final class RecommendJob {
       inverted.add(d);
     }
     if (draws.isEmpty()) {
-      return new StoreResult(rows, drawRows(w, null, inverted));
+      return new StoreResult(rows, drawRows(w, null, inverted), w.draws() > 0);
     }
     Recommendation r = new PriceRecommender(w.shoppers(), j).recommend(draws, settings);
     Bands mc = r.marginChange();
@@ -323,7 +334,26 @@ public final class RecommendJob {
           r.rejectedCandidates(), mc.mean(), mc.q05(), mc.q50(), mc.q95(), mc.probPositive(),
           r.revenueChange().mean(), units, r.evaluations()));
     }
-    return new StoreResult(rows, drawRows(w, r.perDraw(), inverted));
+    return new StoreResult(rows, drawRows(w, r.perDraw(), inverted), false);
+  }
+
+  /**
+   * The note for stores that stock portfolio products but got no recommendation because no
+   * posterior draw reproduced their base-period shares; {@code null} when there are none.
+   */
+  static String unrecommendedNote(List<String> storeIds) {
+    if (storeIds.isEmpty()) {
+      return null;
+    }
+    List<String> sorted = storeIds.stream().sorted().toList();
+    int shown = Math.min(10, sorted.size());
+    return String.format(Locale.ROOT, "%d store%s stock%s portfolio products but got no"
+        + " recommendation: at none of the selected posterior draws could the base-period shares"
+        + " be reproduced (share inversion did not converge): %s%s. Their draws are in %s with"
+        + " used = false", sorted.size(), sorted.size() == 1 ? "" : "s",
+        sorted.size() == 1 ? "s" : "", String.join(", ", sorted.subList(0, shown)),
+        shown < sorted.size() ? " and " + (sorted.size() - shown) + " more" : "",
+        RECOMMENDATION_DRAWS + "/");
   }
 
   /**
