@@ -345,8 +345,13 @@ public final class SimFitProbe {
         : new AnnealedMoveHook(Integer.parseInt(System.getenv("ANNEAL")),
             Integer.parseInt(System.getenv().getOrDefault("AHMC", "1")), leapfrog, warm, priors,
             f.catalog.x(), f.catalog.attributes(), set.seed());
+    // AFFINE=1: the joint location-and-spread move of one taste axis with V_psi (AffineTasteHook)
+    AffineTasteHook affine = System.getenv("AFFINE") == null ? null
+        : new AffineTasteHook(warm, priors, f.catalog.x(), f.catalog.attributes(), set.seed(),
+            false);
     InProcessRunner.SweepHook hook = (sweep, blocks, samplers, state) -> {
       if (anneal != null) anneal.accept(sweep, blocks, samplers, state);
+      if (affine != null) affine.accept(sweep, blocks, samplers, state);
       if (fixGlobals) localSummary(f, blocks, samplers, sweep);
       if (elast && sweep >= warm) {
         for (int c = 0; c < 4; c++) {
