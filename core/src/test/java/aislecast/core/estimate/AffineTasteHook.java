@@ -86,19 +86,7 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
       sumAbsD = new double[kx];
       sumAbsU = new double[kx];
     }
-    for (int c = 0; c < chains; c++) {
-      // the ridge shift accepted this sweep is applied now, before anything else moves the locals
-      double[] pend = st.pendingShift()[c];
-      if (pend != null) {
-        for (int i = 0; i < n; i++) {
-          StoreBlock b = blocks.get(i);
-          double[] nat = samplers.get(i).natural(b.chains[c].position);
-          RidgeMove.apply(b.data, x, kx, nat, pend);
-          b.chains[c].position = samplers.get(i).fromNatural(nat);
-        }
-        st.pendingShift()[c] = null;
-      }
-    }
+    AnnealedMoveHook.applyPendingShifts(blocks, samplers, st, x, kx);
     if (sweep < 20) {
       return;
     }

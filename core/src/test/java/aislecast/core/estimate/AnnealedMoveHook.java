@@ -64,18 +64,8 @@ final class AnnealedMoveHook implements InProcessRunner.SweepHook {
       bMatrix = new double[chains][];
       sumAbsShift = new double[kpsi];
     }
+    applyPendingShifts(blocks, samplers, st, x, kx);
     for (int c = 0; c < chains; c++) {
-      // the ridge shift accepted this sweep is applied now, before anything else moves the locals
-      double[] pend = st.pendingShift()[c];
-      if (pend != null) {
-        for (int i = 0; i < blocks.size(); i++) {
-          StoreBlock b = blocks.get(i);
-          double[] nat = samplers.get(i).natural(b.chains[c].position);
-          RidgeMove.apply(b.data, x, kx, nat, pend);
-          b.chains[c].position = samplers.get(i).fromNatural(nat);
-        }
-        st.pendingShift()[c] = null;
-      }
       if (sweep < 20) {
         continue;
       }
@@ -173,6 +163,27 @@ final class AnnealedMoveHook implements InProcessRunner.SweepHook {
           Math.sqrt(sumLogW2 / proposed - Math.pow(sumLogW / proposed, 2)),
           java.util.Arrays.toString(
               java.util.Arrays.stream(scale).map(v -> Math.round(v * 1000) / 1000.0).toArray()));
+    }
+  }
+
+  /**
+   * Applies each chain's ridge shift accepted this sweep now (the sweep loop would apply it at the
+   * start of the next sweep), so that a hook's move starts from locals consistent with the
+   * globals.
+   */
+  static void applyPendingShifts(List<StoreBlock> blocks, List<StoreSampler> samplers,
+      DriverState st, double[] x, int kx) {
+    for (int c = 0; c < st.chains(); c++) {
+      double[] pend = st.pendingShift()[c];
+      if (pend != null) {
+        for (int i = 0; i < blocks.size(); i++) {
+          StoreBlock b = blocks.get(i);
+          double[] nat = samplers.get(i).natural(b.chains[c].position);
+          RidgeMove.apply(b.data, x, kx, nat, pend);
+          b.chains[c].position = samplers.get(i).fromNatural(nat);
+        }
+        st.pendingShift()[c] = null;
+      }
     }
   }
 
