@@ -99,14 +99,21 @@ public final class PriorPull {
         if (share > HIERARCHY_SHARE_LIMIT) {
           notes.add(String.format(Locale.ROOT,
               "prior of %s: the Inv-Wishart prior supplies about %.0f%% of its posterior mean"
-                  + " %.4g (prior scale S0_kk %.4g, %d stores), so the store-to-store spread of this"
+                  + " %s (prior scale S0_kk %s, %d stores), so the store-to-store spread of this"
                   + " heterogeneity component reflects the prior more than the stores. Consider a"
                   + " smaller priors.v_psi_scale (README, \"Priors that pull\")",
-              names[q], 100 * Math.min(share, 1.0), mean, s0[k * p + k], stores));
+              names[q], 100 * Math.min(share, 1.0), digits4(mean), digits4(s0[k * p + k]),
+              stores));
         }
       }
     }
     return notes;
+  }
+
+  /** Four significant digits without trailing zeros (0.072, 1.1). */
+  private static String digits4(double v) {
+    return new java.math.BigDecimal(v).round(new java.math.MathContext(4)).stripTrailingZeros()
+        .toPlainString();
   }
 
   private static String plain(double v) {
