@@ -35,10 +35,10 @@ import org.ejml.dense.row.CommonOps_DDRM;
  * times the covariance of {@code (m_k, log sd_k)} over all chains' warmup sweeps, times a scale
  * adapted to 25% acceptance in warmup, fixed afterwards.
  *
- * <p>Not validated: on seed 22 one chain went to sigma_xi2 about 23 and tau2 about 9 (README,
- * "Estimation: what works and what does not"); either this probe has an error not found yet or
- * it reaches a far region of the posterior the default sampler does not. Check that before using
- * its numbers.
+ * <p>Not validated, most likely wrong: on seed 22 one chain went to sigma_xi2 about 23 and tau2
+ * about 9, and on a 6-store case where the default sampler converges (V_psi taste diagonal
+ * 0.33-0.35, tau2 0.12) this probe gives 3.4-11.5 and 31 (README, "Estimation: what works and what
+ * does not"). Find the error before using its numbers.
  */
 final class AffineTasteHook implements InProcessRunner.SweepHook {
   private final int warmup;
