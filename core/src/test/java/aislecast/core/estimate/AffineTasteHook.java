@@ -112,45 +112,36 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
       double[] l = propChol[axis];
       double dShift = scale[c][axis] * l[0] * z0;
       double u = scale[c][axis] * (l[2] * z0 + l[3] * z1);
-      double eu = Math.exp(u);
-      double m = 0;
       double[][] nat = new double[n][];
       for (int i = 0; i < n; i++) {
         nat[i] = samplers.get(i).natural(blocks.get(i).chains[c].position);
-        m += nat[i][k];
       }
-      m /= n;
       Globals g = st.globals()[c];
-      GlobalStats cur = new GlobalStats(g.dims());
-      GlobalStats prop = new GlobalStats(g.dims());
-      double logRatio = 0;
-      double[][] moved = new double[n][];
-      double[] shift = new double[kpsi];
-      for (int i = 0; i < n && Double.isFinite(logRatio); i++) {
-        StoreBlock b = blocks.get(i);
-        Sweeps.addStatistics(b.data, nat[i], kpsi, cur);
-        moved[i] = nat[i].clone();
-        shift[k] = dShift + (eu - 1) * (nat[i][k] - m);
-        double logJac = RidgeMove.apply(b.data, x, kx, moved[i], shift);
-        logRatio += logJac + samplers.get(i).salesLogLikelihood(moved[i])
-            - samplers.get(i).salesLogLikelihood(nat[i]);
-        Sweeps.addStatistics(b.data, moved[i], kpsi, prop);
+      Proposal pr = evaluate(blocks, samplers, g, nat, k, dShift, u);
+      if (CHECK && c == 0 && sweep % 10 == 0 && Double.isFinite(pr.logRatio())) {
+        // the reverse move from the proposed state must return to the start with the opposite
+        // log ratio (any error in the maps or their Jacobians shows here)
+        Proposal back = evaluate(blocks, samplers, pr.g(), pr.moved(), k, -dShift, -u);
+        double maxDiff = 0;
+        for (int i = 0; i < n; i++) {
+          for (int q = 0; q < nat[i].length; q++) {
+            maxDiff = Math.max(maxDiff, Math.abs(back.moved()[i][q] - nat[i][q]));
+          }
+        }
+        double vDiff = 0;
+        for (int q = 0; q < kpsi * kpsi; q++) {
+          vDiff = Math.max(vDiff, Math.abs(back.g().vPsi()[q] - g.vPsi()[q]));
+        }
+        System.out.printf("affine check sweep %d axis %d: D %.3f u %.3f forward %.6f back %.6f"
+            + " sum %.2e, position round trip %.2e, V round trip %.2e%n", sweep, k, dShift, u,
+            pr.logRatio(), back.logRatio(), pr.logRatio() + back.logRatio(), maxDiff, vDiff);
       }
-      double[] v = g.vPsi();
-      double[] vNew = v.clone();
-      for (int a = 0; a < kpsi; a++) {
-        vNew[a * kpsi + k] *= eu;
-        vNew[k * kpsi + a] *= eu;
-      }
-      Globals gNew = g.withVPsi(vNew);
-      double a = 0;
-      if (Double.isFinite(logRatio)) {
-        logRatio += RidgeMove.collapsedLogDensity(gNew, prop, priors, fixedLambda)
-            - RidgeMove.collapsedLogDensity(g, cur, priors, fixedLambda)
-            + logInvWishart(vNew, kpsi) - logInvWishart(v, kpsi)
-            + u * (n - 1) + u * (kpsi + 1);
-        a = Double.isNaN(logRatio) ? 0.0 : Math.min(1.0, Math.exp(logRatio));
-      }
+      double logRatio = pr.logRatio();
+      double[][] moved = pr.moved();
+      GlobalStats cur = pr.cur();
+      GlobalStats prop = pr.prop();
+      Globals gNew = pr.g();
+      double a = Double.isNaN(logRatio) ? 0.0 : Math.min(1.0, Math.exp(logRatio));
       proposed[axis]++;
       GlobalStats chosen = cur;
       Globals base = g;
@@ -181,6 +172,54 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
       }
       System.out.println(sb);
     }
+  }
+
+  private static final boolean CHECK = System.getenv("AFFINE_CHECK") != null;
+
+  /** A proposed state: the log ratio, the moved locals (natural), the new globals, both stats. */
+  private record Proposal(double logRatio, double[][] moved, Globals g, GlobalStats cur,
+      GlobalStats prop) {}
+
+  /** The move {@code (dShift, u)} on axis {@code k} from natural locals {@code nat}. */
+  private Proposal evaluate(List<StoreBlock> blocks, List<StoreSampler> samplers, Globals g,
+      double[][] nat, int k, double dShift, double u) {
+    int n = nat.length;
+    int kpsi = g.dims().kpsi();
+    double eu = Math.exp(u);
+    double m = 0;
+    for (int i = 0; i < n; i++) {
+      m += nat[i][k];
+    }
+    m /= n;
+    GlobalStats cur = new GlobalStats(g.dims());
+    GlobalStats prop = new GlobalStats(g.dims());
+    double logRatio = 0;
+    double[][] moved = new double[n][];
+    double[] shift = new double[kpsi];
+    for (int i = 0; i < n && Double.isFinite(logRatio); i++) {
+      StoreBlock b = blocks.get(i);
+      Sweeps.addStatistics(b.data, nat[i], kpsi, cur);
+      moved[i] = nat[i].clone();
+      shift[k] = dShift + (eu - 1) * (nat[i][k] - m);
+      double logJac = RidgeMove.apply(b.data, x, kx, moved[i], shift);
+      logRatio += logJac + samplers.get(i).salesLogLikelihood(moved[i])
+          - samplers.get(i).salesLogLikelihood(nat[i]);
+      Sweeps.addStatistics(b.data, moved[i], kpsi, prop);
+    }
+    double[] v = g.vPsi();
+    double[] vNew = v.clone();
+    for (int a = 0; a < kpsi; a++) {
+      vNew[a * kpsi + k] *= eu;
+      vNew[k * kpsi + a] *= eu;
+    }
+    Globals gNew = g.withVPsi(vNew);
+    if (Double.isFinite(logRatio)) {
+      logRatio += RidgeMove.collapsedLogDensity(gNew, prop, priors, fixedLambda)
+          - RidgeMove.collapsedLogDensity(g, cur, priors, fixedLambda)
+          + logInvWishart(vNew, kpsi) - logInvWishart(v, kpsi)
+          + u * (n - 1) + u * (kpsi + 1);
+    }
+    return new Proposal(logRatio, moved, gNew, cur, prop);
   }
 
   /** The stores' mean of psi_k and the log of their sd, for chain c. */

@@ -5,6 +5,7 @@ import static org.junit.jupiter.api.Assertions.assertTrue;
 
 import aislecast.core.demand.Heterogeneity;
 import aislecast.core.demand.ShareKernel;
+import aislecast.core.globals.Priors;
 import aislecast.core.mcmc.StoreSampler;
 import aislecast.core.model.LocalParams;
 import aislecast.core.model.StoreData;
@@ -175,6 +176,79 @@ class RidgeMoveTest {
       double mode = Math.log((prior.scale() + 0.5 * ss) / (prior.shape() + 0.5 * n + 1));
       double ratio = quad.integrate(1_000_000, f, mode - 12, mode + 12);
       assertEquals(1.0, ratio, 1e-9, "n = " + n + ", ss = " + ss);
+    }
+  }
+
+  /**
+   * The ridge target's hierarchy term, {@code log p(psi_1..n | V)} with Gamma integrated out
+   * under its normal prior, against the same density written as one multivariate normal of all
+   * stores' psi (commons-math3 {@code MultivariateNormalDistribution}): {@code psi_s = Gamma' d_s
+   * + e_s}, so {@code Cov(psi_si, psi_tj) = [s = t] V_ij + [i = j] sum_r d_sr d_tr v0_ri}. Two
+   * different {@code V}: the ridge move only ever compares the term at one {@code V}, a move that
+   * changes {@code V} relies on its dependence on {@code V} too.
+   */
+  @Test
+  void integratedHierarchyMatchesTheJointNormal() {
+    int kd = 2;
+    int kx = 1;
+    int kpsi = aislecast.core.demand.Heterogeneity.dim(kx);
+    int n = 5;
+    Priors priors = Priors.defaults(kd, kx);
+    var dims = new aislecast.core.globals.Dims(kd, kpsi, 1, 0, 0);
+    double[][] d = new double[n][];
+    double[][] psi = new double[n][];
+    java.util.Random r = new java.util.Random(3);
+    var stats = new aislecast.core.globals.GlobalStats(dims);
+    for (int s = 0; s < n; s++) {
+      d[s] = new double[] {1.0, r.nextGaussian()};
+      psi[s] = new double[kpsi];
+      for (int k = 0; k < kpsi; k++) {
+        psi[s][k] = -0.5 + r.nextGaussian();
+      }
+      stats.addStore(d[s], psi[s]);
+    }
+    double[][] vs = {{0.3, 0.05, 0.2, -0.02, 0.01, 0.5}, {2.0, -0.3, 0.9, 0.1, 0.2, 0.15}};
+    double[] m0 = priors.gammaPsiMean();
+    double[] v0 = priors.gammaPsiVar();
+    double[] results = new double[2];
+    for (int c = 0; c < 2; c++) {
+      double[] flat = new double[dims.flatLength()];
+      System.arraycopy(vs[c], 0, flat, kd * kpsi, 6); // V lower triangle, row by row
+      int p = kd * kpsi + 6;
+      flat[p + 1] = 1.0; // tau2
+      flat[p + 2] = 1.0; // sigma_xi2
+      flat[flat.length - 1] = 1.0; // sigma_p2
+      var g = aislecast.core.globals.Globals.fromFlat(dims, flat);
+      double[] v = g.vPsi();
+      double[] mean = new double[n * kpsi];
+      double[][] cov = new double[n * kpsi][n * kpsi];
+      for (int s = 0; s < n; s++) {
+        for (int i = 0; i < kpsi; i++) {
+          for (int q = 0; q < kd; q++) {
+            mean[s * kpsi + i] += d[s][q] * m0[q * kpsi + i];
+          }
+          for (int t = 0; t < n; t++) {
+            for (int j = 0; j < kpsi; j++) {
+              double e = s == t ? v[i * kpsi + j] : 0.0;
+              if (i == j) {
+                for (int q = 0; q < kd; q++) {
+                  e += d[s][q] * d[t][q] * v0[q * kpsi + i];
+                }
+              }
+              cov[s * kpsi + i][t * kpsi + j] = e;
+            }
+          }
+        }
+      }
+      double[] y = new double[n * kpsi];
+      for (int s = 0; s < n; s++) {
+        System.arraycopy(psi[s], 0, y, s * kpsi, kpsi);
+      }
+      double expected = Math.log(
+          new org.apache.commons.math3.distribution.MultivariateNormalDistribution(mean, cov)
+              .density(y));
+      results[c] = RidgeMove.hierarchy(g, stats.hierarchy(), priors);
+      assertEquals(expected, results[c], 1e-8 * Math.abs(expected), "V number " + c);
     }
   }
 }
