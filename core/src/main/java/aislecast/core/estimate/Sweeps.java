@@ -182,7 +182,9 @@ public final class Sweeps {
         double logRatio = merged.salesDelta[c]
             + RidgeMove.collapsedLogDensity(g, merged.proposed[c], priors, fixed)
             - RidgeMove.collapsedLogDensity(g, merged.current[c], priors, fixed);
-        double a = Double.isNaN(logRatio) ? 0.0 : Math.min(1.0, Math.exp(logRatio));
+        // a non-finite ratio (a failed inversion, or a log determinant that over- or underflowed
+        // at a near-singular share Jacobian) is a rejection, never an acceptance
+        double a = Double.isFinite(logRatio) ? Math.min(1.0, Math.exp(logRatio)) : 0.0;
         boolean accept = rng.nextDouble() < a;
         prop[c]++;
         if (accept) {

@@ -87,7 +87,7 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
       sumAbsU = new double[kx];
     }
     AnnealedMoveHook.applyPendingShifts(blocks, samplers, st, x, kx);
-    if (sweep < 20) {
+    if (sweep < 20 || sweep >= warmup && OFF_AFTER_WARMUP) {
       return;
     }
     int axis = sweep % kx;
@@ -141,7 +141,7 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
       GlobalStats cur = pr.cur();
       GlobalStats prop = pr.prop();
       Globals gNew = pr.g();
-      double a = Double.isNaN(logRatio) ? 0.0 : Math.min(1.0, Math.exp(logRatio));
+      double a = Double.isFinite(logRatio) ? Math.min(1.0, Math.exp(logRatio)) : 0.0;
       proposed[axis]++;
       GlobalStats chosen = cur;
       Globals base = g;
@@ -175,6 +175,11 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
   }
 
   private static final boolean CHECK = System.getenv("AFFINE_CHECK") != null;
+  /** AFFINE_PARTS=1: print the log ratio's parts of every proposal that is likely accepted. */
+  private static final boolean PARTS = System.getenv("AFFINE_PARTS") != null;
+  /** AFFINE_OFF=1: the move runs in warmup only, so the exact default kernels take over from
+   * wherever it left the chains. */
+  private static final boolean OFF_AFTER_WARMUP = System.getenv("AFFINE_OFF") != null;
 
   /** A proposed state: the log ratio, the moved locals (natural), the new globals, both stats. */
   private record Proposal(double logRatio, double[][] moved, Globals g, GlobalStats cur,
@@ -194,6 +199,7 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
     GlobalStats cur = new GlobalStats(g.dims());
     GlobalStats prop = new GlobalStats(g.dims());
     double logRatio = 0;
+    double jacSum = 0;
     double[][] moved = new double[n][];
     double[] shift = new double[kpsi];
     for (int i = 0; i < n && Double.isFinite(logRatio); i++) {
@@ -202,6 +208,7 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
       moved[i] = nat[i].clone();
       shift[k] = dShift + (eu - 1) * (nat[i][k] - m);
       double logJac = RidgeMove.apply(b.data, x, kx, moved[i], shift);
+      jacSum += logJac;
       logRatio += logJac + samplers.get(i).salesLogLikelihood(moved[i])
           - samplers.get(i).salesLogLikelihood(nat[i]);
       Sweeps.addStatistics(b.data, moved[i], kpsi, prop);
@@ -214,10 +221,21 @@ final class AffineTasteHook implements InProcessRunner.SweepHook {
     }
     Globals gNew = g.withVPsi(vNew);
     if (Double.isFinite(logRatio)) {
-      logRatio += RidgeMove.collapsedLogDensity(gNew, prop, priors, fixedLambda)
-          - RidgeMove.collapsedLogDensity(g, cur, priors, fixedLambda)
-          + logInvWishart(vNew, kpsi) - logInvWishart(v, kpsi)
-          + u * (n - 1) + u * (kpsi + 1);
+      double hier = RidgeMove.hierarchy(gNew, prop.hierarchy(), priors)
+          - RidgeMove.hierarchy(g, cur.hierarchy(), priors);
+      double icpt = RidgeMove.intercepts(gNew, prop.intercepts(), priors)
+          - RidgeMove.intercepts(g, cur.intercepts(), priors);
+      double reg = RidgeMove.regression(gNew, prop.regression(), priors, fixedLambda)
+          - RidgeMove.regression(g, cur.regression(), priors, fixedLambda);
+      double iw = logInvWishart(vNew, kpsi) - logInvWishart(v, kpsi);
+      logRatio += hier + icpt + reg + iw + u * (n - 1) + u * (kpsi + 1);
+      if (PARTS && logRatio > -2) {
+        System.out.printf("affine parts: D %.3f u %.3f total %.2f = jacobians %.2f + sales %.2e"
+            + " + hierarchy %.2f + intercepts %.2f + regression %.2f + IW %.2f + maps %.2f%n",
+            dShift, u, logRatio, jacSum, logRatio - jacSum - hier - icpt - reg - iw
+                - u * (n - 1) - u * (kpsi + 1), hier, icpt, reg, iw,
+            u * (n - 1) + u * (kpsi + 1));
+      }
     }
     return new Proposal(logRatio, moved, gNew, cur, prop);
   }
