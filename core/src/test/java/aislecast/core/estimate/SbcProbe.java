@@ -1,6 +1,5 @@
 package aislecast.core.estimate;
 
-import aislecast.core.globals.Globals;
 import aislecast.core.globals.Priors;
 import java.util.Arrays;
 import org.apache.commons.math3.stat.inference.ChiSquareTest;
@@ -15,37 +14,14 @@ import org.apache.commons.math3.stat.inference.ChiSquareTest;
 public final class SbcProbe {
   public static void main(String[] args) {
     int reps = Integer.parseInt(args[0]);
-    int thin = 20;
     int bins = 7;
     Priors pr = PriorPredictive.priors();
     String[] names = {"lambda", "Gamma[0,0]", "Gamma[0,1]", "Gamma[0,2]", "V_psi[0,0]",
         "V_psi[1,1]", "V_psi[2,2]", "tau2", "sigma_xi2", "sigma_p2"};
-    long[][] hist = new long[names.length][bins];
     boolean affine = System.getenv("AFFINE") != null;
-    for (int rep = 0; rep < reps; rep++) {
-      PriorPredictive data = new PriorPredictive(1000 + rep, pr);
-      SamplerSettings set = new SamplerSettings(2, 150, 200, 2, 16, 0.8, 77 + rep, false, true);
-      InProcessRunner.SweepHook hook = affine
-          ? new AffineTasteHook(set.warmupSweeps(), pr, data.catalog.x(),
-              data.catalog.attributes(), set.seed(), false)
-          : null;
-      var res = InProcessRunner.run(data.stores, data.catalog, 1, 1, 1, pr, set,
-          new InProcessRunner.Start(null, null, false, hook));
-      String[] all = Globals.parameterNames(res.dims());
-      double[] truth = data.truth.toFlat();
-      for (int q = 0; q < names.length; q++) {
-        int p = Arrays.asList(all).indexOf(names[q]);
-        int rank = 0;
-        for (int c = 0; c < 2; c++) {
-          for (int i = thin - 1; i < set.samplingSweeps(); i += thin) {
-            if (res.globalDraws()[c][i][p] < truth[p]) {
-              rank++;
-            }
-          }
-        }
-        hist[q][rank / 3]++;
-      }
-    }
+    long[][] hist = SimulationBasedCalibrationTest.rankHistograms(pr, names, reps,
+        (data, set) -> affine ? new AffineTasteHook(set.warmupSweeps(), pr, data.catalog.x(),
+            data.catalog.attributes(), set.seed(), false) : null);
     double[] expected = new double[bins];
     Arrays.fill(expected, reps / (double) bins);
     ChiSquareTest chi = new ChiSquareTest();

@@ -29,11 +29,35 @@ class SimulationBasedCalibrationTest {
   void ranksOfTrueValuesAreUniform() {
     Priors pr = PriorPredictive.priors();
     String[] names = {"lambda", "Gamma[0,0]", "sigma_xi2"};
+    long[][] hist = rankHistograms(pr, names, REPLICATIONS, (data, set) -> null);
+    double[] expected = new double[BINS];
+    Arrays.fill(expected, REPLICATIONS / (double) BINS);
+    ChiSquareTest chi = new ChiSquareTest();
+    StringBuilder report = new StringBuilder();
+    boolean ok = true;
+    for (int q = 0; q < names.length; q++) {
+      double pValue = chi.chiSquareTest(expected, hist[q]);
+      report.append(names[q]).append(' ').append(Arrays.toString(hist[q]))
+          .append(String.format(" p=%.4f%n", pValue));
+      ok &= pValue > 0.001;
+    }
+    System.out.print(report);
+    assertTrue(ok, "rank histograms not uniform at level 0.001:\n" + report);
+  }
+
+  /**
+   * Rank histograms (7 bins of 3 ranks over 20 thinned draws) of the named parameters' true
+   * values over {@code reps} prior-predictive replications; {@code hooks} may add a sweep hook
+   * per data set (probes), null for none.
+   */
+  static long[][] rankHistograms(Priors pr, String[] names, int reps,
+      java.util.function.BiFunction<PriorPredictive, SamplerSettings, InProcessRunner.SweepHook> hooks) {
     long[][] hist = new long[names.length][BINS];
-    for (int rep = 0; rep < REPLICATIONS; rep++) {
+    for (int rep = 0; rep < reps; rep++) {
       PriorPredictive data = new PriorPredictive(1000 + rep, pr);
       SamplerSettings set = new SamplerSettings(2, 150, 200, 2, 16, 0.8, 77 + rep, false, true);
-      var res = InProcessRunner.run(data.stores, data.catalog, 1, 1, 1, pr, set);
+      var res = InProcessRunner.run(data.stores, data.catalog, 1, 1, 1, pr, set,
+          new InProcessRunner.Start(null, null, false, hooks.apply(data, set)));
       String[] all = Globals.parameterNames(res.dims());
       double[] truth = data.truth.toFlat();
       for (int q = 0; q < names.length; q++) {
@@ -50,18 +74,6 @@ class SimulationBasedCalibrationTest {
         hist[q][rank / 3]++;
       }
     }
-    double[] expected = new double[BINS];
-    Arrays.fill(expected, REPLICATIONS / (double) BINS);
-    ChiSquareTest chi = new ChiSquareTest();
-    StringBuilder report = new StringBuilder();
-    boolean ok = true;
-    for (int q = 0; q < names.length; q++) {
-      double pValue = chi.chiSquareTest(expected, hist[q]);
-      report.append(names[q]).append(' ').append(Arrays.toString(hist[q]))
-          .append(String.format(" p=%.4f%n", pValue));
-      ok &= pValue > 0.001;
-    }
-    System.out.print(report);
-    assertTrue(ok, "rank histograms not uniform at level 0.001:\n" + report);
+    return hist;
   }
 }
