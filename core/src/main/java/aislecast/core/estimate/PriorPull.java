@@ -86,25 +86,22 @@ public final class PriorPull {
     int p = priors.vPsi().dim();
     double[] s0 = priors.vPsi().scale();
     double dfPost = priors.vPsi().df() + stores - p - 1;
-    for (int q = 0; q < names.length; q++) {
-      for (int k = 0; k < p; k++) {
-        if (!names[q].equals("V_psi[" + k + "," + k + "]")) {
-          continue;
-        }
-        double mean = summaries[q].mean();
-        if (!(mean > 0) || !(dfPost > 0)) {
-          continue;
-        }
-        double share = s0[k * p + k] / (mean * dfPost);
-        if (share > HIERARCHY_SHARE_LIMIT) {
-          notes.add(String.format(Locale.ROOT,
-              "prior of %s: the Inv-Wishart prior supplies about %.0f%% of its posterior mean"
-                  + " %s (prior scale S0_kk %s, %d stores), so the store-to-store spread of this"
-                  + " heterogeneity component reflects the prior more than the stores. Consider a"
-                  + " smaller priors.v_psi_scale (README, \"Priors that pull\")",
-              names[q], 100 * Math.min(share, 1.0), digits4(mean), digits4(s0[k * p + k]),
-              stores));
-        }
+    List<String> all = java.util.Arrays.asList(names);
+    for (int k = 0; k < p; k++) {
+      int q = all.indexOf("V_psi[" + k + "," + k + "]");
+      double mean = q < 0 ? Double.NaN : summaries[q].mean();
+      if (!(mean > 0) || !(dfPost > 0)) {
+        continue;
+      }
+      double share = s0[k * p + k] / (mean * dfPost);
+      if (share > HIERARCHY_SHARE_LIMIT) {
+        notes.add(String.format(Locale.ROOT,
+            "prior of %s: the Inv-Wishart prior supplies about %.0f%% of its posterior mean"
+                + " %s (prior scale S0_kk %s, %d stores), so the store-to-store spread of this"
+                + " heterogeneity component reflects the prior more than the stores. Consider a"
+                + " smaller priors.v_psi_scale (README, \"Priors that pull\")",
+            names[q], 100 * Math.min(share, 1.0), digits4(mean), digits4(s0[k * p + k]),
+            stores));
       }
     }
     return notes;
