@@ -16,6 +16,9 @@ import java.io.Serializable;
  * @param fixLambdaZero fit without price endogeneity (lambda held at 0) for comparisons
  * @param ridgeMove whether each sweep proposes the joint price-sensitivity shift of
  *     {@link RidgeMove} (default true; off only to measure what it buys)
+ * @param momentumPersistence after warmup, each store keeps its local HMC momentum from one
+ *     sweep to the next and refreshes it partially with this weight ({@link
+ *     aislecast.core.mcmc.Hmc#stepPersistent}); 0 draws a fresh momentum every transition
  */
 public record SamplerSettings(
     int chains,
@@ -26,8 +29,17 @@ public record SamplerSettings(
     double targetAccept,
     long seed,
     boolean fixLambdaZero,
-    boolean ridgeMove)
+    boolean ridgeMove,
+    double momentumPersistence)
     implements Serializable {
+
+  /** Settings with a fresh momentum every local transition (probes and older tests). */
+  public SamplerSettings(int chains, int warmupSweeps, int samplingSweeps, int localSteps,
+      int leapfrogSteps, double targetAccept, long seed, boolean fixLambdaZero,
+      boolean ridgeMove) {
+    this(chains, warmupSweeps, samplingSweeps, localSteps, leapfrogSteps, targetAccept, seed,
+        fixLambdaZero, ridgeMove, 0.0);
+  }
 
   public SamplerSettings {
     require(chains >= 1, "chains must be >= 1, got " + chains);
@@ -36,10 +48,16 @@ public record SamplerSettings(
     require(localSteps >= 1, "local steps must be >= 1");
     require(leapfrogSteps >= 1, "leapfrog steps must be >= 1");
     require(targetAccept > 0 && targetAccept < 1, "target acceptance must be in (0, 1)");
+    require(momentumPersistence >= 0 && momentumPersistence < 1,
+        "momentum persistence must be in [0, 1)");
   }
 
+  /** Default of {@link #momentumPersistence} (README, "Estimation: what works and what does not"). */
+  public static final double DEFAULT_MOMENTUM_PERSISTENCE = 0.9;
+
   public static SamplerSettings defaults(long seed) {
-    return new SamplerSettings(4, 300, 500, 1, 8, 0.8, seed, false, true);
+    return new SamplerSettings(4, 300, 500, 1, 8, 0.8, seed, false, true,
+        DEFAULT_MOMENTUM_PERSISTENCE);
   }
 
   public int totalSweeps() {

@@ -99,7 +99,8 @@ public final class Sweeps {
     StoreData d = b.data;
     int kpsi = Heterogeneity.dim(kx);
     StoreSampler.Settings local =
-        new StoreSampler.Settings(set.localWarmup(), set.leapfrogSteps(), set.targetAccept());
+        new StoreSampler.Settings(set.localWarmup(), set.leapfrogSteps(), set.targetAccept(),
+            set.momentumPersistence());
     boolean keep = sweep >= set.warmupSweeps();
     for (int c = 0; c < b.chains.length; c++) {
       StoreChainState s = b.chains[c];

@@ -23,6 +23,8 @@ public final class StoreChainState implements Serializable {
   public long divergent;
   public double acceptSum;
   public long transitions;
+  /** Momentum kept between transitions when the local kernel refreshes it partially, else null. */
+  public double[] momentum;
 
   public StoreChainState copy() {
     StoreChainState s = new StoreChainState();
@@ -38,6 +40,7 @@ public final class StoreChainState implements Serializable {
     s.divergent = divergent;
     s.acceptSum = acceptSum;
     s.transitions = transitions;
+    s.momentum = momentum == null ? null : momentum.clone();
     return s;
   }
 }

@@ -12,15 +12,28 @@ import org.apache.commons.math3.random.RandomGenerator;
  * intercepts between trajectories). Both leave the store's
  * conditional posterior given the globals invariant, so any number of them per sweep keeps the
  * whole scheme exact. During warmup the HMC step size follows dual averaging and the diagonal
- * mass matrix is re-estimated at the end of each slow window ({@link WarmupSchedule}).
+ * mass matrix is re-estimated at the end of each slow window ({@link WarmupSchedule}). After
+ * warmup the momentum can be kept from one transition to the next and refreshed partially
+ * ({@link Settings#persistence}), so a store's locals keep drifting the same way across sweeps
+ * instead of restarting a random walk at every sweep.
  */
 public final class StoreSampler {
-  /** Tuning that stays fixed for a run. */
-  public record Settings(int warmup, int leapfrogSteps, double targetAccept) {
+  /**
+   * Tuning that stays fixed for a run.
+   *
+   * @param persistence after warmup, the weight of the kept momentum in each partial refresh
+   *     ({@link Hmc#stepPersistent}); 0: a fresh momentum every transition
+   */
+  public record Settings(int warmup, int leapfrogSteps, double targetAccept, double persistence) {
     public Settings {
-      if (warmup < 0 || leapfrogSteps < 1 || !(targetAccept > 0 && targetAccept < 1)) {
+      if (warmup < 0 || leapfrogSteps < 1 || !(targetAccept > 0 && targetAccept < 1)
+          || !(persistence >= 0 && persistence < 1)) {
         throw new IllegalArgumentException("bad local sampler settings");
       }
+    }
+
+    public Settings(int warmup, int leapfrogSteps, double targetAccept) {
+      this(warmup, leapfrogSteps, targetAccept, 0.0);
     }
   }
 
@@ -143,7 +156,20 @@ public final class StoreSampler {
       java.util.Arrays.fill(im, holdPsi ? 0 : kpsi + d.products.length,
           holdDelta ? im.length : kpsi, 1e-300);
     }
-    Hmc.Step st = Hmc.step(rng, state, target, eps, im, set.leapfrogSteps());
+    Hmc.Step st;
+    double persistence = set.persistence();
+    if (persistence > 0 && !adapting) {
+      if (s.momentum == null) {
+        s.momentum = new double[im.length];
+        for (int i = 0; i < im.length; i++) {
+          s.momentum[i] = rng.nextGaussian() / Math.sqrt(im[i]);
+        }
+      }
+      st = Hmc.stepPersistent(rng, state, target, eps, im, set.leapfrogSteps(), s.momentum,
+          persistence);
+    } else {
+      st = Hmc.step(rng, state, target, eps, im, set.leapfrogSteps());
+    }
     s.position = st.state().position();
     s.logDensity = st.state().logDensity();
     // Gibbs on kappa given (psi, delta): in sampler coordinates kt = kappa + gbar(psi), a

@@ -40,9 +40,11 @@ class EndogeneityBiasTest {
     Priors pr = Priors.defaults(2, 1);
     names = Globals.parameterNames(data.dims);
     full = draws(InProcessRunner.run(data.stores, data.catalog, 2, 1, 1, pr,
-        new SamplerSettings(2, 150, 250, 2, 16, 0.8, 5, false, true)));
+        new SamplerSettings(2, 150, 250, 2, 16, 0.8, 5, false, true,
+            SamplerSettings.DEFAULT_MOMENTUM_PERSISTENCE)));
     exogenous = draws(InProcessRunner.run(data.stores, data.catalog, 2, 1, 1, pr,
-        new SamplerSettings(2, 150, 250, 2, 16, 0.8, 5, true, true)));
+        new SamplerSettings(2, 150, 250, 2, 16, 0.8, 5, true, true,
+            SamplerSettings.DEFAULT_MOMENTUM_PERSISTENCE)));
   }
 
   /** Per parameter, all kept draws of both chains. */

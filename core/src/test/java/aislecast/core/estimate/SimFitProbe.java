@@ -258,7 +258,9 @@ public final class SimFitProbe {
     }
     SimFixture f = new SimFixture(st);
     int leapfrog = Integer.parseInt(System.getenv().getOrDefault("LF", "16"));
-    var set = new SamplerSettings(4, warm, keep, local, leapfrog, 0.8, Long.parseLong(System.getenv().getOrDefault("SEED", "11")), false, !"0".equals(System.getenv("RIDGE")));
+    var set = new SamplerSettings(4, warm, keep, local, leapfrog, Double.parseDouble(System.getenv().getOrDefault("TACC", "0.8")), Long.parseLong(System.getenv().getOrDefault("SEED", "11")), false, !"0".equals(System.getenv("RIDGE")),
+        Double.parseDouble(System.getenv().getOrDefault("PERSIST",
+            String.valueOf(SamplerSettings.DEFAULT_MOMENTUM_PERSISTENCE))));
     RidgeMove.collapseNoiseVariance = !"0".equals(System.getenv("COLLAPSE_XI"));
     aislecast.core.mcmc.StoreSampler.holdPsi = System.getenv("FIXPSI") != null;
     aislecast.core.mcmc.StoreSampler.holdDelta = System.getenv("FIXDELTA") != null;

@@ -55,7 +55,8 @@ class SimulationBasedCalibrationTest {
     long[][] hist = new long[names.length][BINS];
     for (int rep = 0; rep < reps; rep++) {
       PriorPredictive data = new PriorPredictive(1000 + rep, pr);
-      SamplerSettings set = new SamplerSettings(2, 150, 200, 2, 16, 0.8, 77 + rep, false, true);
+      SamplerSettings set = new SamplerSettings(2, 150, 200, 2, 16, 0.8, 77 + rep, false, true,
+          SamplerSettings.DEFAULT_MOMENTUM_PERSISTENCE);
       var res = InProcessRunner.run(data.stores, data.catalog, 1, 1, 1, pr, set,
           new InProcessRunner.Start(null, null, false, hooks.apply(data, set)));
       String[] all = Globals.parameterNames(res.dims());

@@ -74,7 +74,7 @@ public final class EstimateBenchCommand implements Callable<Integer> {
         localSteps != null ? localSteps : sc.localSteps(),
         leapfrogSteps != null ? leapfrogSteps : sc.leapfrogSteps(), sc.targetAccept(), sc.shopperDraws(), sc.checkpointEvery(),
         sc.rhatMax(), sc.essMin(), 1, sc.partitions(), sc.sumGroup(), sc.ridgeMove(),
-        sc.fixLambdaZero());
+        sc.fixLambdaZero(), sc.momentumPersistence());
     RunConfig config = RunConfig.defaults().withSampler(sc);
     List<String> rows = new ArrayList<>();
     int cores;

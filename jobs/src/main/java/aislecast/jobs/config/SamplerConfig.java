@@ -29,6 +29,9 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  * @param ridgeMove propose the joint price-sensitivity shift each sweep (true)
  * @param fixLambdaZero fit without the price equation's endogeneity, lambda held at 0 (false;
  *     for comparisons only)
+ * @param momentumPersistence after warmup, the weight with which each store's local HMC keeps
+ *     its momentum from one sweep to the next (see {@code SamplerSettings}); 0 draws a fresh one
+ *     every transition
  */
 public record SamplerConfig(
     @JsonProperty("chains") int chains,
@@ -45,7 +48,8 @@ public record SamplerConfig(
     @JsonProperty("partitions") int partitions,
     @JsonProperty("sum_group") int sumGroup,
     @JsonProperty("ridge_move") boolean ridgeMove,
-    @JsonProperty("fix_lambda_zero") boolean fixLambdaZero) {
+    @JsonProperty("fix_lambda_zero") boolean fixLambdaZero,
+    @JsonProperty("momentum_persistence") double momentumPersistence) {
 
   public static final int DEFAULT_CHAINS = 4;
   public static final int DEFAULT_WARMUP = 300;
@@ -60,6 +64,8 @@ public record SamplerConfig(
   public static final int DEFAULT_PROGRESS_EVERY = 25;
   public static final int DEFAULT_PARTITIONS = 0;
   public static final int DEFAULT_SUM_GROUP = 64;
+  public static final double DEFAULT_MOMENTUM_PERSISTENCE =
+      aislecast.core.estimate.SamplerSettings.DEFAULT_MOMENTUM_PERSISTENCE;
 
   public SamplerConfig {
     require(chains >= 2, "sampler.chains", chains + " (need at least 2 for R-hat)");
@@ -76,6 +82,8 @@ public record SamplerConfig(
     require(progressEvery >= 1, "sampler.progress_every", progressEvery + " (need >= 1)");
     require(partitions >= 0, "sampler.partitions", partitions + " (need >= 0; 0 = automatic)");
     require(sumGroup >= 1, "sampler.sum_group", sumGroup + " (need >= 1)");
+    require(momentumPersistence >= 0 && momentumPersistence < 1, "sampler.momentum_persistence",
+        momentumPersistence + " (need a value in [0, 1))");
   }
 
   /** YAML entry point: absent keys take their defaults (a primitive cannot say "absent"). */
@@ -95,7 +103,8 @@ public record SamplerConfig(
       @JsonProperty("partitions") Integer partitions,
       @JsonProperty("sum_group") Integer sumGroup,
       @JsonProperty("ridge_move") Boolean ridgeMove,
-      @JsonProperty("fix_lambda_zero") Boolean fixLambdaZero) {
+      @JsonProperty("fix_lambda_zero") Boolean fixLambdaZero,
+      @JsonProperty("momentum_persistence") Double momentumPersistence) {
     return new SamplerConfig(
         or(chains, DEFAULT_CHAINS),
         or(warmup, DEFAULT_WARMUP),
@@ -111,33 +120,34 @@ public record SamplerConfig(
         or(partitions, DEFAULT_PARTITIONS),
         or(sumGroup, DEFAULT_SUM_GROUP),
         or(ridgeMove, true),
-        or(fixLambdaZero, false));
+        or(fixLambdaZero, false),
+        or(momentumPersistence, DEFAULT_MOMENTUM_PERSISTENCE));
   }
 
   public static SamplerConfig defaults() {
     return fromYaml(null, null, null, null, null, null, null, null, null, null, null, null, null,
-        null, null);
+        null, null, null);
   }
 
   /** Copy with other sweep counts (tests, benchmarks and the demo's reduced run). */
   public SamplerConfig withSweeps(int newWarmup, int newSampling) {
     return new SamplerConfig(chains, newWarmup, newSampling, localSteps, leapfrogSteps,
         targetAccept, shopperDraws, checkpointEvery, rhatMax, essMin, progressEvery, partitions,
-        sumGroup, ridgeMove, fixLambdaZero);
+        sumGroup, ridgeMove, fixLambdaZero, momentumPersistence);
   }
 
   /** Copy with other convergence limits. */
   public SamplerConfig withLimits(double newRhatMax, double newEssMin) {
     return new SamplerConfig(chains, warmup, sampling, localSteps, leapfrogSteps, targetAccept,
         shopperDraws, checkpointEvery, newRhatMax, newEssMin, progressEvery, partitions, sumGroup,
-        ridgeMove, fixLambdaZero);
+        ridgeMove, fixLambdaZero, momentumPersistence);
   }
 
   /** Copy with other Spark layout settings. */
   public SamplerConfig withLayout(int newPartitions, int newSumGroup, int newCheckpointEvery) {
     return new SamplerConfig(chains, warmup, sampling, localSteps, leapfrogSteps, targetAccept,
         shopperDraws, newCheckpointEvery, rhatMax, essMin, progressEvery, newPartitions,
-        newSumGroup, ridgeMove, fixLambdaZero);
+        newSumGroup, ridgeMove, fixLambdaZero, momentumPersistence);
   }
 
   public int totalSweeps() {

@@ -148,7 +148,8 @@ public final class EstimateJob {
   /** The sampler settings of a run configuration and seed. */
   public static SamplerSettings samplerSettings(SamplerConfig s, long seed) {
     return new SamplerSettings(s.chains(), s.warmup(), s.sampling(), s.localSteps(),
-        s.leapfrogSteps(), s.targetAccept(), seed, s.fixLambdaZero(), s.ridgeMove());
+        s.leapfrogSteps(), s.targetAccept(), seed, s.fixLambdaZero(), s.ridgeMove(),
+        s.momentumPersistence());
   }
 
   /**

@@ -67,6 +67,12 @@ class RunConfigLoaderTest {
     ConfigException roles = assertThrows(ConfigException.class,
         () -> RunConfigLoader.parse("input:\n  sales:\n    cost_shifters: [price]\n", "x.yaml"));
     assertTrue(roles.getMessage().contains("'price'"), roles.getMessage());
+    ConfigException persistence = assertThrows(ConfigException.class,
+        () -> RunConfigLoader.parse("sampler:\n  momentum_persistence: 1.0\n", "x.yaml"));
+    assertTrue(persistence.getMessage().contains("sampler.momentum_persistence"),
+        persistence.getMessage());
+    assertEquals(0.0, RunConfigLoader.parse("sampler:\n  momentum_persistence: 0\n", "x.yaml")
+        .sampler().momentumPersistence());
     ConfigException missing = assertThrows(ConfigException.class,
         () -> RunConfigLoader.load(Path.of("no-such-file.yaml")));
     assertTrue(missing.getMessage().contains("no-such-file.yaml"), missing.getMessage());

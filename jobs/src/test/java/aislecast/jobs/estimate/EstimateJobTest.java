@@ -74,7 +74,7 @@ class EstimateJobTest {
   /** Few sweeps, checkpoints every 4, 2 partitions, one summation group for all stores. */
   private static SamplerConfig small(int partitions, int sumGroup) {
     return new SamplerConfig(3, 8, 8, 1, 8, 0.8, 200, 4, 1.01, 400, 5, partitions, sumGroup,
-        true, false);
+        true, false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE);
   }
 
   private static SparkSession spark(String master) {
