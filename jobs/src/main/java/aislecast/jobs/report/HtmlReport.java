@@ -398,7 +398,7 @@ final class HtmlReport {
       image(Charts.forest("Scenario " + s.scenario() + ": portfolio revenue change",
           "revenue change against base (currency per week)", bands),
           "Forest plot of portfolio revenue change by store for scenario " + s.scenario());
-      outputConvergence(d, s.scenario(), "revenue");
+      outputConvergence(d, s.scenario(), "revenue", "margin", "units");
       if (!s.regions().isEmpty()) {
         h.append("<table><tr><th class=\"t\">region</th><th>draws</th><th>mean change</th>")
             .append("<th>5%</th><th>25%</th><th>median</th><th>75%</th><th>95%</th>")
@@ -417,11 +417,18 @@ final class HtmlReport {
 
   /**
    * A scenarios or recommend run's check of its own outputs ({@code output_convergence} in its
-   * run.json): whether the chains agree on the portfolio's change in {@code metric} summed over
-   * stores for output {@code scenario}. Flagged when R-hat is above the estimation run's limit or
-   * unknown.
+   * run.json): one line per metric, in the order given, saying whether the chains agree on the
+   * portfolio's change in that metric summed over stores for output {@code scenario}. Flagged
+   * when R-hat is above the estimation run's limit or unknown; a metric the run did not check
+   * gets no line.
    */
-  private void outputConvergence(ReportData d, String scenario, String metric) {
+  private void outputConvergence(ReportData d, String scenario, String... metrics) {
+    for (String metric : metrics) {
+      outputConvergenceLine(d, scenario, metric);
+    }
+  }
+
+  private void outputConvergenceLine(ReportData d, String scenario, String metric) {
     for (RunTables.RunFolder f : d.runs()) {
       JsonNode m = f.manifest();
       if (m == null) {
@@ -486,7 +493,7 @@ final class HtmlReport {
         .append(" revenue and units columns are the whole portfolio of the store, against the")
         .append(" base period; the 5% and 95% columns bound 90% of the posterior draws. Showing ")
         .append(t.rows().size()).append(" of ").append(t.totalRows()).append(" rows.</p>\n");
-    outputConvergence(d, RecommendJob.OUTPUT_NAME, "margin");
+    outputConvergence(d, RecommendJob.OUTPUT_NAME, "margin", "revenue", "units");
     h.append("<div class=\"scroll\"><table>\n<tr>");
     for (String c : t.columns()) {
       h.append("<th class=\"t\">").append(esc(c.replace('_', ' '))).append("</th>");

@@ -132,6 +132,13 @@ class ReportCommandTest {
         + " revenue change over all stores? R-hat 1.210, bulk ESS 14 (4 chains x "), html);
     assertEquals(1, countOf(html, "<p class=\"okline\">Do the chains agree on the portfolio's"
         + " revenue change over all stores? R-hat 1.004"));
+    // every metric the run checked gets its line, after the revenue line it belongs with
+    assertEquals(1, countOf(html, "<p class=\"okline\">Do the chains agree on the portfolio's"
+        + " units change over all stores? R-hat 1.002"));
+    assertTrue(html.indexOf("units change over all stores? R-hat 1.002")
+        > html.indexOf("revenue change over all stores? R-hat 1.210"), "revenue first");
+    assertEquals(0, countOf(html, "margin change over all stores? R-hat 1.00"),
+        "no line for a metric the scenarios run did not check");
     assertTrue(html.indexOf("R-hat 1.210") > html.indexOf("<h3>Scenario "
         + SyntheticRuns.SCENARIOS.get(0) + "</h3>") && html.indexOf("R-hat 1.210")
         < html.indexOf("<h3>Scenario " + SyntheticRuns.SCENARIOS.get(1) + "</h3>"),
@@ -148,6 +155,10 @@ class ReportCommandTest {
         + " margin change over all stores? R-hat 1.310, bulk ESS 11 (4 chains x "), html);
     assertTrue(html.indexOf("margin change over all stores? R-hat 1.310")
         > html.indexOf("<h2 id=\"recommendations\">"), "under the recommended prices");
+    assertEquals(1, countOf(html, "<p class=\"okline\">Do the chains agree on the portfolio's"
+        + " revenue change over all stores? R-hat 1.003"));
+    assertTrue(html.indexOf("revenue change over all stores? R-hat 1.003")
+        > html.indexOf("margin change over all stores? R-hat 1.310"), "margin first");
     // every recommendation row, and the cautions
     assertEquals(runs.recommendationRows(), countOf(html, "<td class=\"t\">Fizzwell</td>"));
     assertTrue(html.contains(HtmlReport.CAUTIONS_HEADING));
