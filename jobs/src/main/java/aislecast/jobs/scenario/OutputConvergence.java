@@ -22,8 +22,11 @@ import org.apache.spark.sql.SparkSession;
  *
  * <p>A draw counts only when every store of the output has a valid value for it (a draw whose
  * share inversion, cost recovery or equilibrium failed in one store would otherwise give a total
- * over fewer stores); the others are left out and counted. Chains are then cut to the shortest,
- * as R-hat needs chains of equal length.
+ * over fewer stores); the others are left out and counted. A chain with fewer than {@link
+ * Diagnostics#MIN_DRAWS} such draws is left out too (and counted, and named in a note), as long
+ * as two chains with enough draws remain: otherwise one chain stuck where the figures fail would
+ * make the whole check impossible. Chains are then cut to the shortest, as R-hat needs chains of
+ * equal length.
  */
 final class OutputConvergence {
   private OutputConvergence() {}
@@ -47,9 +50,16 @@ final class OutputConvergence {
    *
    * @param drawsLeftOut selected draws without a valid value in every store (not counting those
    *     cut to give every chain the same length)
+   * @param chainsLeftOut chains left out for having too few valid draws ({@code chains} counts
+   *     the others)
    */
   record Check(String scenario, String metric, int chains, int drawsPerChain, int drawsLeftOut,
-      double rhat, double essBulk) {
+      double rhat, double essBulk, int chainsLeftOut) {
+
+    Check(String scenario, String metric, int chains, int drawsPerChain, int drawsLeftOut,
+        double rhat, double essBulk) {
+      this(scenario, metric, chains, drawsPerChain, drawsLeftOut, rhat, essBulk, 0);
+    }
 
     Map<String, Object> toJson() {
       Map<String, Object> m = new LinkedHashMap<>();
@@ -58,6 +68,7 @@ final class OutputConvergence {
       m.put("chains", chains);
       m.put("draws_per_chain", drawsPerChain);
       m.put("draws_left_out", drawsLeftOut);
+      m.put("chains_left_out", chainsLeftOut);
       m.put("rhat", Double.isFinite(rhat) ? rhat : null);
       m.put("ess_bulk", Double.isFinite(essBulk) ? essBulk : null);
       return m;
@@ -110,6 +121,15 @@ final class OutputConvergence {
           chain.add(v);
         }
       }
+      int enough = 0;
+      for (List<Double> ch : chains.values()) {
+        enough += ch.size() >= Diagnostics.MIN_DRAWS ? 1 : 0;
+      }
+      int chainsLeftOut = 0;
+      if (enough >= 2 && enough < chains.size()) {
+        chainsLeftOut = chains.size() - enough;
+        chains.values().removeIf(ch -> ch.size() < Diagnostics.MIN_DRAWS);
+      }
       int n = Integer.MAX_VALUE;
       for (List<Double> ch : chains.values()) {
         n = Math.min(n, ch.size());
@@ -128,7 +148,7 @@ final class OutputConvergence {
         rhat = Diagnostics.rankRhat(x);
         ess = Diagnostics.essBulk(x);
       }
-      out.add(new Check(key[0], key[1], chains.size(), n, leftOut, rhat, ess));
+      out.add(new Check(key[0], key[1], chains.size(), n, leftOut, rhat, ess, chainsLeftOut));
     }
     return out;
   }
@@ -161,8 +181,9 @@ final class OutputConvergence {
   static String line(Check k) {
     return String.format(Locale.ROOT, "%s, portfolio %s change over all stores: R-hat %s, bulk"
         + " ESS %s (%d chains x %d draws%s)", k.scenario(), k.metric(), fmt(k.rhat(), "%.3f"),
-        fmt(k.essBulk(), "%.0f"), k.chains(), k.drawsPerChain(), k.drawsLeftOut() == 0 ? ""
-            : "; " + k.drawsLeftOut() + " draws left out, not valid in every store");
+        fmt(k.essBulk(), "%.0f"), k.chains(), k.drawsPerChain(), (k.drawsLeftOut() == 0 ? ""
+            : "; " + k.drawsLeftOut() + " draws left out, not valid in every store")
+            + (k.chainsLeftOut() == 0 ? "" : "; " + k.chainsLeftOut() + " chain(s) left out"));
   }
 
   /**
@@ -174,10 +195,14 @@ final class OutputConvergence {
     List<String> notes = new ArrayList<>();
     Map<String, List<String>> above = new LinkedHashMap<>();
     Map<String, Integer> leftOut = new LinkedHashMap<>();
+    Map<String, Integer> chainsOut = new LinkedHashMap<>();
     int unknown = 0;
     for (Check k : checks) {
       if (k.drawsLeftOut() > 0) {
         leftOut.merge(k.scenario(), k.drawsLeftOut(), Math::max);
+      }
+      if (k.chainsLeftOut() > 0) {
+        chainsOut.merge(k.scenario(), k.chainsLeftOut(), Math::max);
       }
       if (Double.isNaN(k.rhat())) {
         unknown++;
@@ -190,6 +215,10 @@ final class OutputConvergence {
         + " draws left out of the output convergence check because they are not valid in every"
         + " store (a share inversion, cost recovery or equilibrium failed)", kind.prefix, name, n,
         selected)));
+    chainsOut.forEach((name, n) -> notes.add(String.format(Locale.ROOT, "%s%s: %d chain(s) left"
+        + " out of the output convergence check because fewer than %d of their draws are valid"
+        + " in every store; such a chain sits where the model's figures fail, so the chains"
+        + " cannot be said to agree", kind.prefix, name, n, Diagnostics.MIN_DRAWS)));
     above.forEach((name, metrics) -> notes.add(String.format(Locale.ROOT,
         "%s%s: the chains disagree about the portfolio's %s change over the posterior"
             + " draws used (R-hat limit %.3f), so those bands are not reliable yet", kind.prefix,

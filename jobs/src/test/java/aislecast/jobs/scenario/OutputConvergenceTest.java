@@ -245,6 +245,58 @@ class OutputConvergenceTest {
   }
 
   /**
+   * A chain whose draws are nearly all invalid somewhere (chain 2 keeps 2 of 6) is left out when
+   * two chains with at least 4 valid draws remain; the other chains' check is computed as if it
+   * had not been selected, and a note names the scenario. With only one good chain left nothing
+   * is dropped and the check is, as before, not computable.
+   */
+  @Test
+  void aChainWithTooFewValidDrawsIsLeftOutWhenTwoGoodChainsRemain() {
+    Random rng = new Random(8);
+    double[][] good = new double[2][6];
+    List<Row> rows = new ArrayList<>();
+    for (int c = 0; c < 3; c++) {
+      for (int d = 0; d < 6; d++) {
+        double x = rng.nextGaussian();
+        if (c < 2) {
+          good[c][d] = x;
+        }
+        rows.add(RowFactory.create("stuck", "S1", c, d, "portfolio", "units", x, c < 2 || d < 2,
+            true));
+      }
+    }
+    OutputConvergence.Check k = checks(rows, all(3, 6, 6, 6)).get(0);
+    assertEquals(2, k.chains());
+    assertEquals(1, k.chainsLeftOut());
+    assertEquals(6, k.drawsPerChain());
+    assertEquals(4, k.drawsLeftOut());
+    assertEquals(Diagnostics.rankRhat(good), k.rhat(), 1e-12);
+    assertEquals(Diagnostics.essBulk(good), k.essBulk(), 1e-9);
+    assertEquals(1, k.toJson().get("chains_left_out"));
+    assertTrue(OutputConvergence.line(k).endsWith("; 1 chain(s) left out)"),
+        OutputConvergence.line(k));
+    List<String> notes = OutputConvergence.notes(List.of(k), 10.0, 18,
+        OutputConvergence.Outputs.SCENARIOS);
+    assertTrue(notes.contains("scenario stuck: 1 chain(s) left out of the output convergence"
+        + " check because fewer than 4 of their draws are valid in every store; such a chain sits"
+        + " where the model's figures fail, so the chains cannot be said to agree"),
+        notes.toString());
+
+    // only chain 0 has enough: nothing is dropped, the check cannot be computed
+    List<Row> one = new ArrayList<>();
+    for (int c = 0; c < 2; c++) {
+      for (int d = 0; d < 6; d++) {
+        one.add(RowFactory.create("lonely", "S1", c, d, "portfolio", "units",
+            rng.nextGaussian(), c == 0 || d < 2, true));
+      }
+    }
+    OutputConvergence.Check lonely = checks(one, all(2, 6, 6)).get(0);
+    assertEquals(0, lonely.chainsLeftOut());
+    assertEquals(2, lonely.chains());
+    assertTrue(Double.isNaN(lonely.rhat()));
+  }
+
+  /**
    * recommend's recommendation_draws (wide: one row per store and draw, nulls where a draw was
    * not used) becomes one output per metric under the given name.
    */
