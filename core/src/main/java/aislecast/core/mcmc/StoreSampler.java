@@ -212,6 +212,8 @@ public final class StoreSampler {
         s.invMass[k] = (n / (n + 5.0)) * varBuf[k] + 1e-3 * (5.0 / (n + 5.0));
       }
       s.window.reset();
+      // a momentum kept from before (a warm-started block) belongs to the old mass matrix
+      s.momentum = null;
       s.stepAdapt = DualAveraging.init(s.stepAdapt.stepSize());
     }
     if (i == set.warmup() - 1) {
