@@ -60,6 +60,12 @@ public record SamplerSettings(
         DEFAULT_MOMENTUM_PERSISTENCE);
   }
 
+  /** The same settings with another number of kept sweeps (an extended run). */
+  public SamplerSettings withSamplingSweeps(int sampling) {
+    return new SamplerSettings(chains, warmupSweeps, sampling, localSteps, leapfrogSteps,
+        targetAccept, seed, fixLambdaZero, ridgeMove, momentumPersistence);
+  }
+
   public int totalSweeps() {
     return warmupSweeps + samplingSweeps;
   }

@@ -23,6 +23,22 @@ public final class StoreBlock implements Serializable {
     this.psiDraws = new double[chains.length][kpsi * capacity];
   }
 
+  /**
+   * A copy with room for {@code capacity} kept sweeps of {@code kpsi} values per chain, the
+   * draws kept so far carried over (an extended run keeps sampling where this one stopped).
+   */
+  public StoreBlock withCapacity(int kpsi, int capacity) {
+    if (keptDraws > capacity) {
+      throw new IllegalArgumentException("capacity " + capacity + " below the " + keptDraws
+          + " draws kept");
+    }
+    StoreBlock b = copy();
+    for (int c = 0; c < b.psiDraws.length; c++) {
+      b.psiDraws[c] = java.util.Arrays.copyOf(psiDraws[c], kpsi * capacity);
+    }
+    return b;
+  }
+
   /** Deep copy, so a new sweep never mutates the previous sweep's (possibly cached) blocks. */
   public StoreBlock copy() {
     StoreChainState[] c = new StoreChainState[chains.length];

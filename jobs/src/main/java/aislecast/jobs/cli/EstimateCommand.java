@@ -42,6 +42,12 @@ public final class EstimateCommand extends JobCommand {
           + " store positions where a store's weeks and products are unchanged.")
   String warmStart;
 
+  @Option(names = "--extend", paramLabel = "RUNDIR",
+      description = "Continue a finished run's chains under a new --run-id with more kept sweeps:"
+          + " same --input, --seed and configuration, sampler.sampling raised to the total"
+          + " wanted. Its draws are carried over; no new warmup.")
+  String extend;
+
   @Option(names = "--allow-unconverged",
       description = "Exit 0 even when R-hat or ESS limits are not met (recorded in run.json).")
   boolean allowUnconverged;
@@ -61,7 +67,7 @@ public final class EstimateCommand extends JobCommand {
     RunConfig config = RunConfigLoader.load(common.conf());
     EstimateJob.Options o = new EstimateJob.Options(common.input(), common.output(),
         common.runId(), common.seed(), resume, warmStart, allowUnconverged, stopAfterSweep, -1,
-        common.conf() == null ? null : common.conf().toString(), common.replace());
+        common.conf() == null ? null : common.conf().toString(), common.replace(), extend);
     EstimateJob.Result r;
     try (SparkSessions.Handle spark = SparkSessions.open(common.master(), "aislecast estimate")) {
       r = EstimateJob.run(spark.spark(), config, o, log("estimate"));
@@ -69,8 +75,10 @@ public final class EstimateCommand extends JobCommand {
     if (r.status() == EstimateJob.Status.NOT_CONVERGED) {
       throw new RunFailure(RunFailure.NOT_CONVERGED, "convergence limits not met for "
           + r.failures().size() + " global parameter(s) (first: " + r.failures().get(0)
-          + "); outputs are in " + r.runDir() + ". Run more sweeps"
-          + " (sampler.warmup, sampler.sampling) or pass --allow-unconverged");
+          + "); outputs are in " + r.runDir() + ". Run more sweeps: continue this run with"
+          + " --extend " + r.runDir() + " --run-id <new id> and sampler.sampling raised, or"
+          + " start over with more sampler.warmup and sampler.sampling; or pass"
+          + " --allow-unconverged");
     }
     return ExitCodeMapper.OK;
   }

@@ -19,6 +19,11 @@ final class ChainRecord implements Serializable {
   /** {@code kept[chain][draw]}: flat globals after each kept sweep (null until drawn). */
   final double[][][] kept;
   int keptDraws;
+  /**
+   * The published run whose sweeps this one continues ({@code --extend}), null otherwise. Added
+   * after the first checkpoints were written: those read back with null here, as they should.
+   */
+  String extendsRun;
   double acceptWarmup;
   double acceptSampling;
   long divergentWarmup;
@@ -33,6 +38,37 @@ final class ChainRecord implements Serializable {
     this.productIds = productIds.clone();
     this.state = state;
     this.kept = new double[chains][sampling][];
+  }
+
+  /**
+   * This record with room for {@code sampling} kept sweeps under a new key, every draw and total
+   * so far carried over: the start of a run that extends the one this record ends.
+   */
+  ChainRecord extendedTo(String newKey, int sampling, String fromRun) {
+    if (sampling < keptDraws) {
+      throw new IllegalArgumentException(sampling + " kept sweeps is fewer than the "
+          + keptDraws + " kept already");
+    }
+    ChainRecord r = new ChainRecord(newKey, productIds, state, kept.length, sampling);
+    for (int c = 0; c < kept.length; c++) {
+      System.arraycopy(kept[c], 0, r.kept[c], 0, keptDraws);
+    }
+    r.keptDraws = keptDraws;
+    r.extendsRun = fromRun;
+    r.acceptWarmup = acceptWarmup;
+    r.acceptSampling = acceptSampling;
+    r.divergentWarmup = divergentWarmup;
+    r.divergentSampling = divergentSampling;
+    r.sweepSeconds = sweepSeconds;
+    r.modelSeconds = modelSeconds;
+    r.aggregateSeconds = aggregateSeconds;
+    r.driverSeconds = driverSeconds;
+    return r;
+  }
+
+  /** Kept sweeps this record has room for. */
+  int samplingCapacity() {
+    return kept.length == 0 ? 0 : kept[0].length;
   }
 
   int nextSweep() {

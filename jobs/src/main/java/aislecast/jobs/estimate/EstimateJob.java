@@ -57,10 +57,12 @@ public final class EstimateJob {
    * @param stopAtSweep stop with a checkpoint once this many sweeps are done (-1: run all);
    *     continue later with {@code resume}
    * @param failAtSweep fault test only: fail the first attempt of one task in this sweep (-1)
+   * @param extend a finished run folder whose chains this new run continues with more kept
+   *     sweeps (its draws carried over), or null
    */
   public record Options(String input, String outputRoot, String runId, long seed, boolean resume,
       String warmStart, boolean allowUnconverged, int stopAtSweep, int failAtSweep,
-      String confSource, boolean replace) {
+      String confSource, boolean replace, String extend) {
     public Options {
       if (input == null || outputRoot == null || runId == null) {
         throw new IllegalArgumentException("input, output and run id must be set");
@@ -72,46 +74,53 @@ public final class EstimateJob {
         String warmStart, boolean allowUnconverged, int stopAtSweep, int failAtSweep,
         String confSource) {
       this(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged, stopAtSweep,
-          failAtSweep, confSource, false);
+          failAtSweep, confSource, false, null);
     }
 
     public static Options of(String input, String outputRoot, String runId, long seed) {
-      return new Options(input, outputRoot, runId, seed, false, null, false, -1, -1, null, false);
+      return new Options(input, outputRoot, runId, seed, false, null, false, -1, -1, null, false,
+          null);
     }
 
     public Options withResume(boolean r) {
       return new Options(input, outputRoot, runId, seed, r, warmStart, allowUnconverged,
-          stopAtSweep, failAtSweep, confSource, replace);
+          stopAtSweep, failAtSweep, confSource, replace, extend);
     }
 
     public Options withStopAtSweep(int k) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged, k,
-          failAtSweep, confSource, replace);
+          failAtSweep, confSource, replace, extend);
     }
 
     public Options withFailAtSweep(int k) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
-          stopAtSweep, k, confSource, replace);
+          stopAtSweep, k, confSource, replace, extend);
     }
 
     public Options withWarmStart(String runDir) {
       return new Options(input, outputRoot, runId, seed, resume, runDir, allowUnconverged,
-          stopAtSweep, failAtSweep, confSource, replace);
+          stopAtSweep, failAtSweep, confSource, replace, extend);
     }
 
     public Options withAllowUnconverged(boolean a) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, a, stopAtSweep,
-          failAtSweep, confSource, replace);
+          failAtSweep, confSource, replace, extend);
     }
 
     public Options withConfSource(String s) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
-          stopAtSweep, failAtSweep, s, replace);
+          stopAtSweep, failAtSweep, s, replace, extend);
+    }
+
+    /** Continue the published run in {@code runDir} with more kept sweeps ({@code --extend}). */
+    public Options withExtend(String runDir) {
+      return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
+          stopAtSweep, failAtSweep, confSource, replace, runDir);
     }
 
     public Options withReplace(boolean r) {
       return new Options(input, outputRoot, runId, seed, resume, warmStart, allowUnconverged,
-          stopAtSweep, failAtSweep, confSource, r);
+          stopAtSweep, failAtSweep, confSource, r, extend);
     }
   }
 
@@ -199,6 +208,9 @@ public final class EstimateJob {
         throw new RunFailure(RunFailure.BAD_INPUT, "--resume and --warm-start exclude each"
             + " other");
       }
+      if (o.extend() != null) {
+        requireExtensible(spark, o);
+      }
 
       // 2. Read and validate (rejects go to the run folder).
       long t = System.nanoTime();
@@ -249,8 +261,7 @@ public final class EstimateJob {
             java.math.BigDecimal.valueOf(priors.sigmaP2().shape()).stripTrailingZeros()
                 .toPlainString(), priors.sigmaP2().scale());
       }
-      String key = problem.fingerprint() + "|" + set + "|" + config.priors() + "|sum_group="
-          + sc.sumGroup();
+      String key = runKey(problem, set, config);
       int partitions = sc.partitions() > 0 ? sc.partitions()
           : Math.max(1, Math.min(problem.stores().size(), 2 * jsc.defaultParallelism()));
       SweepLoop.Settings loopSettings = new SweepLoop.Settings(set, priors, partitions,
@@ -267,6 +278,27 @@ public final class EstimateJob {
         }
         loop.resume(latest, saved);
         out.println("  resuming after sweep " + saved.nextSweep() + " of " + set.totalSweeps());
+      } else if (o.extend() != null) {
+        StateCheckpoints earlier = new StateCheckpoints(jsc, o.extend() + "/" + CHECKPOINT_DIR);
+        Path last = earlier.latest().orElseThrow(() -> new RunFailure(RunFailure.BAD_INPUT,
+            "--extend " + o.extend() + ": no final state in " + earlier.location()
+                + " (is it a finished estimate run folder?)"));
+        ChainRecord saved = earlier.readRecord(last);
+        int had = saved.samplingCapacity();
+        if (saved.nextSweep() != set.warmupSweeps() + had
+            || !saved.key.equals(runKey(problem, set.withSamplingSweeps(had), config))) {
+          throw new RunFailure(RunFailure.BAD_INPUT, "cannot extend " + o.extend() + ": it was"
+              + " made with other input data, seed, or sampler or prior settings; extend it with"
+              + " the same --input, --seed and configuration, only sampler.sampling raised");
+        }
+        if (set.samplingSweeps() <= had) {
+          throw new RunFailure(RunFailure.BAD_INPUT, "--extend " + o.extend() + ": that run kept "
+              + had + " sweeps per chain and sampler.sampling is " + set.samplingSweeps()
+              + "; set sampler.sampling to the total wanted after extending, above " + had);
+        }
+        loop.extend(earlier, last, saved.extendedTo(key, set.samplingSweeps(), o.extend()));
+        out.println("  extending " + o.extend() + ": its " + had + " kept sweeps per chain"
+            + " continue to " + set.samplingSweeps());
       } else if (o.warmStart() != null) {
         WarmStart warm = WarmStart.read(jsc, o.warmStart(), problem, set.chains());
         loop.start(key, warm.globals(), warm.positions());
@@ -365,29 +397,68 @@ public final class EstimateJob {
   }
 
   /**
+   * What the chains' state is tied to: a checkpoint or earlier run with another key cannot be
+   * continued by this run. The key holds the input's fingerprint, every sampler setting (the
+   * seed and both sweep counts included), the priors and the summation grouping.
+   */
+  static String runKey(EstimationProblem problem, SamplerSettings set, RunConfig config) {
+    return problem.fingerprint() + "|" + set + "|" + config.priors() + "|sum_group="
+        + config.sampler().sumGroup();
+  }
+
+  /** {@code --extend} starts a new run id from a finished run, and only from one. */
+  private static void requireExtensible(SparkSession spark, Options o) {
+    if (o.resume() || o.warmStart() != null) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "--extend starts a new run and excludes"
+          + " --resume and --warm-start (a stopped extension continues with --resume alone)");
+    }
+    try {
+      Path from = new Path(o.extend());
+      FileSystem fs = from.getFileSystem(spark.sparkContext().hadoopConfiguration());
+      if (fs.makeQualified(from).equals(fs.makeQualified(new Path(o.outputRoot(), o.runId())))) {
+        throw new RunFailure(RunFailure.BAD_INPUT, "--extend " + o.extend() + " is this run's"
+            + " own folder; give the extended run a new --run-id");
+      }
+    } catch (IOException e) {
+      throw new RunFailure(RunFailure.BAD_INPUT, "--extend " + o.extend() + ": " + e.getMessage(),
+          e);
+    }
+  }
+
+  /**
    * What makes a rerun of this run id the same run: the input tables' files, the effective
-   * configuration, the seed, and the warm-start run's run.json when there is one.
-   * {@code --allow-unconverged} is left out: it changes the exit code, not the outputs.
+   * configuration, the seed, and the run.json of the run it warm-starts from or extends, when
+   * there is one. {@code --allow-unconverged} is left out: it changes the exit code, not the
+   * outputs.
    */
   static RunIdentity identity(SparkSession spark, RunConfig config, Options o) {
     RunIdentity id = RunIdentity.of("estimate", config)
         .part("inputs", "input files", InputFingerprint.ofInput(spark, config, o.input()))
         .seed(o.seed());
     if (o.warmStart() != null) {
-      Path json = new Path(o.warmStart(), RUN_JSON);
-      List<InputFingerprint.FileDigest> files = new ArrayList<>();
-      try {
-        FileSystem fs = json.getFileSystem(spark.sparkContext().hadoopConfiguration());
-        if (fs.exists(json)) {
-          files.add(InputFingerprint.ofFile(fs, json, RUN_JSON));
-        }
-      } catch (IOException e) {
-        throw new RunFailure(RunFailure.BAD_INPUT, "--warm-start " + o.warmStart() + ": cannot"
-            + " read " + RUN_JSON + ": " + e.getMessage(), e);
-      }
-      id.part("warm_start_run", "warm-start run", files);
+      id.part("warm_start_run", "warm-start run", runJson(spark, o.warmStart(), "--warm-start"));
+    }
+    if (o.extend() != null) {
+      id.part("extended_run", "extended run", runJson(spark, o.extend(), "--extend"));
     }
     return id;
+  }
+
+  /** The digest of an earlier run's run.json (none when it has none). */
+  private static List<InputFingerprint.FileDigest> runJson(SparkSession spark, String runDir,
+      String option) {
+    Path json = new Path(runDir, RUN_JSON);
+    List<InputFingerprint.FileDigest> files = new ArrayList<>();
+    try {
+      FileSystem fs = json.getFileSystem(spark.sparkContext().hadoopConfiguration());
+      if (fs.exists(json)) {
+        files.add(InputFingerprint.ofFile(fs, json, RUN_JSON));
+      }
+    } catch (IOException e) {
+      throw new RunFailure(RunFailure.BAD_INPUT, option + " " + runDir + ": cannot read "
+          + RUN_JSON + ": " + e.getMessage(), e);
+    }
+    return files;
   }
 
   /**

@@ -60,6 +60,7 @@ final class Manifest {
     s.put("divergences_warmup", rec.divergentWarmup);
     s.put("divergences_sampling", rec.divergentSampling);
     s.put("warm_start", o.warmStart());
+    s.put("extends", rec.extendsRun);
     m.put("sampler", s);
 
     // the variance priors as used (price_noise_scale: auto resolves here)

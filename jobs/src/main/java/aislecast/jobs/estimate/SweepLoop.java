@@ -121,6 +121,21 @@ final class SweepLoop {
     lastCheckpoint = saved.nextSweep();
   }
 
+  /**
+   * Continues a finished run's final state (a published run's {@code _checkpoint}) with more
+   * kept sweeps: {@code grown} is its record with room for them, and every store block gets the
+   * same room. The sweeps that follow are those an uninterrupted run with the larger count makes.
+   */
+  void extend(StateCheckpoints earlier, org.apache.hadoop.fs.Path sweepDir, ChainRecord grown) {
+    record = grown;
+    int kpsi = dims.kpsi();
+    int capacity = grown.samplingCapacity();
+    state = earlier.readBlocks(sweepDir)
+        .map(b -> new SweptStore(b.withCapacity(kpsi, capacity), null, 0L))
+        .setName("stores@" + grown.nextSweep() + " (extended)");
+    state.persist(LEVEL).count();
+  }
+
   private String[] productIds() {
     String[] ids = new String[problem.catalog().size()];
     for (int p = 0; p < ids.length; p++) {

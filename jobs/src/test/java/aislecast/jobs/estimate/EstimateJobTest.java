@@ -73,8 +73,12 @@ class EstimateJobTest {
 
   /** Few sweeps, checkpoints every 4, 2 partitions, one summation group for all stores. */
   private static SamplerConfig small(int partitions, int sumGroup) {
-    return new SamplerConfig(3, 8, 8, 1, 8, 0.8, 200, 4, 1.01, 400, 5, partitions, sumGroup,
-        true, false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE);
+    return small(partitions, sumGroup, 8);
+  }
+
+  private static SamplerConfig small(int partitions, int sumGroup, int sampling) {
+    return new SamplerConfig(3, 8, sampling, 1, 8, 0.8, 200, 4, 1.01, 400, 5, partitions,
+        sumGroup, true, false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE);
   }
 
   private static SparkSession spark(String master) {
@@ -198,6 +202,61 @@ class EstimateJobTest {
     assertEquals(16, resumed.sweepsDone());
     assertSameDraws(reference(resumed, sc), resumed.globalDraws());
     assertFalse(Files.exists(out.resolve(".work-d")), "work folder removed after publishing");
+  }
+
+  @Test
+  void anExtendedRunEqualsALongerUninterruptedOne() throws Exception {
+    SamplerConfig eight = small(2, 64, 8);
+    SamplerConfig sixteen = small(2, 64, 16);
+    SparkSession spark = spark("local[2]");
+    EstimateJob.Result first = run(spark, eight, options("g"));
+    assertEquals(16, first.sweepsDone());
+
+    // refused: nothing to add, another seed, the run's own folder
+    RunFailure nothing = assertThrows(RunFailure.class,
+        () -> run(spark, eight, options("g2").withExtend(first.runDir())));
+    assertEquals(2, nothing.exitCode());
+    assertTrue(nothing.getMessage().contains("above 8"), nothing.getMessage());
+    RunFailure otherSeed = assertThrows(RunFailure.class, () -> run(spark, sixteen,
+        EstimateJob.Options.of(data.resolve("in").toString(), out.toString(), "g2", SEED + 1)
+            .withExtend(first.runDir())));
+    assertEquals(2, otherSeed.exitCode());
+    assertTrue(otherSeed.getMessage().contains("cannot extend"), otherSeed.getMessage());
+    RunFailure own = assertThrows(RunFailure.class, () -> run(spark, sixteen,
+        options("g").withReplace(true).withExtend(first.runDir())));
+    assertTrue(own.getMessage().contains("new --run-id"), own.getMessage());
+    assertFalse(Files.exists(out.resolve("g2")), "a refused extension publishes nothing");
+
+    // 8 more kept sweeps: the same draws as 8 + 16 sweeps in one go (InProcessRunner), the
+    // earlier run's 8 kept draws first
+    EstimateJob.Result extended = run(spark, sixteen, options("g2").withExtend(first.runDir()));
+    assertEquals(24, extended.sweepsDone());
+    assertSameDraws(reference(extended, sixteen), extended.globalDraws());
+    for (int c = 0; c < 3; c++) {
+      for (int d = 0; d < 8; d++) {
+        assertArrayEquals(first.globalDraws()[c][d], extended.globalDraws()[c][d]);
+      }
+    }
+    JsonNode manifest = new ObjectMapper().readTree(out.resolve("g2/run.json").toFile());
+    assertEquals(first.runDir(), manifest.at("/sampler/extends").asText());
+    assertEquals(16, manifest.at("/sampler/sampling_sweeps").asInt());
+
+    // the stores' draws too, against an uninterrupted run of 16 kept sweeps on Spark
+    EstimateJob.Result whole = run(spark, sixteen, options("g3"));
+    Dataset<Row> a = spark.read().parquet(out.resolve("g2/posterior/store_draws").toString());
+    Dataset<Row> b = spark.read().parquet(out.resolve("g3/posterior/store_draws").toString());
+    assertEquals((long) STORES * 3 * 16 * whole.problem().dims().kpsi(), a.count());
+    assertEquals(a.count(), b.count());
+    assertEquals(0, a.except(b).count(), "store draws of the extended run differ");
+
+    // an extension stopped part-way continues with --resume alone, to the same draws
+    EstimateJob.Result stopped = run(spark, sixteen,
+        options("g4").withExtend(first.runDir()).withStopAtSweep(19));
+    assertEquals(EstimateJob.Status.STOPPED, stopped.status());
+    EstimateJob.Result resumed = run(spark, sixteen, options("g4").withResume(true));
+    assertSameDraws(whole.globalDraws(), resumed.globalDraws());
+    JsonNode resumedManifest = new ObjectMapper().readTree(out.resolve("g4/run.json").toFile());
+    assertEquals(first.runDir(), resumedManifest.at("/sampler/extends").asText());
   }
 
   @Test
