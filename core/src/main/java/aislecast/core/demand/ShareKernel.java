@@ -96,7 +96,38 @@ public final class ShareKernel {
   private static void jacobian(int r, int j, double[] probs, double[] alpha, double[] out) {
     // symmetric (w_i P_ia P_ib is symmetric in a, b): accumulate the upper triangle, then mirror
     java.util.Arrays.fill(out, 0, j * j, 0.0);
-    for (int i = 0; i < r; i++) {
+    // four shoppers per pass over the triangle: each entry still takes the shoppers' terms one
+    // after another in shopper order (bit for bit the one-shopper loop), loaded and stored once
+    int i = 0;
+    for (; i + 3 < r; i += 4) {
+      int r0 = i * j;
+      int r1 = r0 + j;
+      int r2 = r1 + j;
+      int r3 = r2 + j;
+      double w0 = alpha == null ? 1.0 : -alpha[i];
+      double w1 = alpha == null ? 1.0 : -alpha[i + 1];
+      double w2 = alpha == null ? 1.0 : -alpha[i + 2];
+      double w3 = alpha == null ? 1.0 : -alpha[i + 3];
+      for (int a = 0; a < j; a++) {
+        double pa0 = w0 * probs[r0 + a];
+        double pa1 = w1 * probs[r1 + a];
+        double pa2 = w2 * probs[r2 + a];
+        double pa3 = w3 * probs[r3 + a];
+        int o = a * j;
+        // the diagonal gets each shopper's pa before that shopper's own product term
+        double diag = out[o + a];
+        diag = (diag + pa0) - pa0 * probs[r0 + a];
+        diag = (diag + pa1) - pa1 * probs[r1 + a];
+        diag = (diag + pa2) - pa2 * probs[r2 + a];
+        diag = (diag + pa3) - pa3 * probs[r3 + a];
+        out[o + a] = diag;
+        for (int b = a + 1; b < j; b++) {
+          out[o + b] = (((out[o + b] - pa0 * probs[r0 + b]) - pa1 * probs[r1 + b])
+              - pa2 * probs[r2 + b]) - pa3 * probs[r3 + b];
+        }
+      }
+    }
+    for (; i < r; i++) {
       int row = i * j;
       double w = alpha == null ? 1.0 : -alpha[i];
       for (int a = 0; a < j; a++) {

@@ -68,6 +68,8 @@ public final class StoreTarget implements Target {
   private final double[] shopperTaste;
   private final double[] psiMean;
   private final double[] tmp;
+  private final double[] colMax;
+  private final double[] xCol;
 
   public StoreTarget(StoreData d, double[] x, int kx) {
     this.d = d;
@@ -105,6 +107,8 @@ public final class StoreTarget implements Target {
     this.shopperTaste = new double[r * Math.max(1, kx)];
     this.psiMean = new double[kpsi];
     this.tmp = new double[kpsi];
+    this.colMax = new double[jmax];
+    this.xCol = new double[Math.max(1, kx) * jmax];
   }
 
   /** Sets the conditioning globals (read, not copied). */
@@ -190,25 +194,35 @@ public final class StoreTarget implements Target {
       int a = d.rowStart[t];
       int j = d.rowStart[t + 1] - a;
       int base = r * a;
+      // the R x J block is row-major (shopper, product): walk it in that order, keeping each
+      // column's running maximum and then its running sum (the same terms, added in the same
+      // shopper order, as a column-by-column walk)
       for (int p = 0; p < j; p++) {
-        int prod = d.product[a + p];
-        double price = d.price[a + p];
-        double c = Double.NEGATIVE_INFINITY;
-        for (int i = 0; i < r; i++) {
-          double v = mu[i * jCat + prod] - alpha[i] * price;
-          aExp[base + i * j + p] = v;
-          if (v > c) {
-            c = v;
+        colMax[p] = Double.NEGATIVE_INFINITY;
+        colSum[a + p] = 0.0;
+      }
+      for (int i = 0; i < r; i++) {
+        int row = base + i * j;
+        int mrow = i * jCat;
+        double al = alpha[i];
+        for (int p = 0; p < j; p++) {
+          double v = mu[mrow + d.product[a + p]] - al * d.price[a + p];
+          aExp[row + p] = v;
+          if (v > colMax[p]) {
+            colMax[p] = v;
           }
         }
-        double sum = 0;
-        for (int i = 0; i < r; i++) {
-          double ex = Math.exp(aExp[base + i * j + p] - c);
-          aExp[base + i * j + p] = ex;
-          sum += ex;
+      }
+      for (int i = 0; i < r; i++) {
+        int row = base + i * j;
+        for (int p = 0; p < j; p++) {
+          double ex = Math.exp(aExp[row + p] - colMax[p]);
+          aExp[row + p] = ex;
+          colSum[a + p] += ex;
         }
-        colSum[a + p] = sum;
-        offset[a + p] = c + Math.log(sum) - logR;
+      }
+      for (int p = 0; p < j; p++) {
+        offset[a + p] = colMax[p] + Math.log(colSum[a + p]) - logR;
         gbar[d.local[a + p]] += offset[a + p];
       }
     }
@@ -329,7 +343,57 @@ public final class StoreTarget implements Target {
       }
       double o = Math.exp(-bmax);
       double s0 = 0;
-      for (int i = 0; i < r; i++) {
+      // Shoppers go four at a time: each shopper's sums keep their own order, and sums over
+      // shoppers (s, s0, gRow) still add shopper by shopper, so every value is the one a
+      // shopper-by-shopper loop gives, bit for bit; four independent sums in flight keep the
+      // floating-point adder busy instead of waiting on one chain.
+      int i = 0;
+      for (; i + 3 < r; i += 4) {
+        int r0 = i * j;
+        int r1 = r0 + j;
+        int r2 = r1 + j;
+        int r3 = r2 + j;
+        double in0 = 0;
+        double in1 = 0;
+        double in2 = 0;
+        double in3 = 0;
+        for (int p = 0; p < j; p++) {
+          double ep = e[p];
+          double v0 = ep * aExp[base + r0 + p];
+          double v1 = ep * aExp[base + r1 + p];
+          double v2 = ep * aExp[base + r2 + p];
+          double v3 = ep * aExp[base + r3 + p];
+          probs[r0 + p] = v0;
+          probs[r1 + p] = v1;
+          probs[r2 + p] = v2;
+          probs[r3 + p] = v3;
+          in0 += v0;
+          in1 += v1;
+          in2 += v2;
+          in3 += v3;
+        }
+        double inv0 = 1.0 / (o + in0);
+        double inv1 = 1.0 / (o + in1);
+        double inv2 = 1.0 / (o + in2);
+        double inv3 = 1.0 / (o + in3);
+        for (int p = 0; p < j; p++) {
+          double x0 = probs[r0 + p] * inv0;
+          double x1 = probs[r1 + p] * inv1;
+          double x2 = probs[r2 + p] * inv2;
+          double x3 = probs[r3 + p] * inv3;
+          probs[r0 + p] = x0;
+          probs[r1 + p] = x1;
+          probs[r2 + p] = x2;
+          probs[r3 + p] = x3;
+          s[p] = (((s[p] + x0) + x1) + x2) + x3;
+        }
+        outside[i] = o * inv0;
+        outside[i + 1] = o * inv1;
+        outside[i + 2] = o * inv2;
+        outside[i + 3] = o * inv3;
+        s0 = (((s0 + outside[i]) + outside[i + 1]) + outside[i + 2]) + outside[i + 3];
+      }
+      for (; i < r; i++) {
         int row = i * j;
         double in = 0;
         for (int p = 0; p < j; p++) {
@@ -358,7 +422,37 @@ public final class StoreTarget implements Target {
       ll += q0 == 0 ? 0.0 : q0 * Math.log(s0);
       double w0 = q0 / s0;
       // pass 1: dL/dv_rj, and the total d/d delta of each row
-      for (int i = 0; i < r; i++) {
+      i = 0;
+      for (; i + 3 < r; i += 4) {
+        int r0 = i * j;
+        int r1 = r0 + j;
+        int r2 = r1 + j;
+        int r3 = r2 + j;
+        double pw0 = w0 * outside[i];
+        double pw1 = w0 * outside[i + 1];
+        double pw2 = w0 * outside[i + 2];
+        double pw3 = w0 * outside[i + 3];
+        for (int p = 0; p < j; p++) {
+          double wp = w[p];
+          pw0 += wp * probs[r0 + p];
+          pw1 += wp * probs[r1 + p];
+          pw2 += wp * probs[r2 + p];
+          pw3 += wp * probs[r3 + p];
+        }
+        for (int p = 0; p < j; p++) {
+          double wp = w[p];
+          double g0 = invR * probs[r0 + p] * (wp - pw0);
+          double g1 = invR * probs[r1 + p] * (wp - pw1);
+          double g2 = invR * probs[r2 + p] * (wp - pw2);
+          double g3 = invR * probs[r3 + p] * (wp - pw3);
+          gv[r0 + p] = g0;
+          gv[r1 + p] = g1;
+          gv[r2 + p] = g2;
+          gv[r3 + p] = g3;
+          gRow[a + p] = (((gRow[a + p] + g0) + g1) + g2) + g3;
+        }
+      }
+      for (; i < r; i++) {
         int row = i * j;
         double pw = w0 * outside[i];
         for (int p = 0; p < j; p++) {
@@ -370,25 +464,82 @@ public final class StoreTarget implements Target {
           gRow[a + p] += gvi;
         }
       }
-      // pass 2: weights on dv_rj/dpsi, including the coordinate maps' dependence on psi
+      // pass 2: weights on dv_rj/dpsi, including the coordinate maps' dependence on psi; the
+      // weights replace gv in place, the attributes are laid out by attribute for this market
       for (int p = 0; p < j; p++) {
         int k = d.local[a + p];
         e[p] = (gRow[a + p] + gKappa[k] / count[k]) / colSum[a + p];
         grad[off + a + p] = gRow[a + p];
+        for (int m = 0; m < kx; m++) {
+          xCol[m * j + p] = x[d.product[a + p] * kx + m];
+        }
       }
-      for (int i = 0; i < r; i++) {
+      i = 0;
+      for (; i + 3 < r; i += 4) {
+        int r0 = i * j;
+        int r1 = r0 + j;
+        int r2 = r1 + j;
+        int r3 = r2 + j;
+        double gp0 = 0;
+        double gp1 = 0;
+        double gp2 = 0;
+        double gp3 = 0;
+        for (int p = 0; p < j; p++) {
+          double ep = e[p];
+          double price = d.price[a + p];
+          double wt0 = gv[r0 + p] - ep * aExp[base + r0 + p];
+          double wt1 = gv[r1 + p] - ep * aExp[base + r1 + p];
+          double wt2 = gv[r2 + p] - ep * aExp[base + r2 + p];
+          double wt3 = gv[r3 + p] - ep * aExp[base + r3 + p];
+          gp0 += wt0 * price;
+          gp1 += wt1 * price;
+          gp2 += wt2 * price;
+          gp3 += wt3 * price;
+          gv[r0 + p] = wt0;
+          gv[r1 + p] = wt1;
+          gv[r2 + p] = wt2;
+          gv[r3 + p] = wt3;
+        }
+        shopperPrice[i] += gp0;
+        shopperPrice[i + 1] += gp1;
+        shopperPrice[i + 2] += gp2;
+        shopperPrice[i + 3] += gp3;
+        for (int k = 0; k < kx; k++) {
+          int xb = k * j;
+          double t0 = shopperTaste[i * tk + k];
+          double t1 = shopperTaste[(i + 1) * tk + k];
+          double t2 = shopperTaste[(i + 2) * tk + k];
+          double t3 = shopperTaste[(i + 3) * tk + k];
+          for (int p = 0; p < j; p++) {
+            double xv = xCol[xb + p];
+            t0 += gv[r0 + p] * xv;
+            t1 += gv[r1 + p] * xv;
+            t2 += gv[r2 + p] * xv;
+            t3 += gv[r3 + p] * xv;
+          }
+          shopperTaste[i * tk + k] = t0;
+          shopperTaste[(i + 1) * tk + k] = t1;
+          shopperTaste[(i + 2) * tk + k] = t2;
+          shopperTaste[(i + 3) * tk + k] = t3;
+        }
+      }
+      for (; i < r; i++) {
         int row = i * j;
         double gp = 0;
-        int tb = i * tk;
         for (int p = 0; p < j; p++) {
           double wt = gv[row + p] - e[p] * aExp[base + row + p];
           gp += wt * d.price[a + p];
-          int prod = d.product[a + p];
-          for (int k = 0; k < kx; k++) {
-            shopperTaste[tb + k] += wt * x[prod * kx + k];
-          }
+          gv[row + p] = wt;
         }
         shopperPrice[i] += gp;
+        for (int k = 0; k < kx; k++) {
+          int xb = k * j;
+          double acc = shopperTaste[i * tk + k];
+          for (int p = 0; p < j; p++) {
+            acc += gv[row + p] * xCol[xb + p];
+          }
+          shopperTaste[i * tk + k] = acc;
+        }
       }
     }
     int stride = 1 + kx;
