@@ -526,6 +526,26 @@ public final class EstimateJob {
     return out;
   }
 
+  /**
+   * Kept sweeps per chain, in all, at which every global parameter's bulk ESS would reach
+   * {@code essMin} if it kept growing in proportion to the kept sweeps, as it does once chains
+   * have settled (Vehtari et al. 2021, section 4): {@code kept * essMin / ess} for the slowest
+   * parameter, rounded up to a multiple of 100. An extrapolation for planning an {@code --extend},
+   * not a promise; R-hat is not extrapolated. -1 when every bulk ESS meets the limit or none is
+   * usable (constant or non-finite draws).
+   */
+  public static int keptSweepsNeeded(ParameterSummary[] summaries, double essMin, int kept) {
+    double need = 0;
+    for (ParameterSummary q : summaries) {
+      double ess = q.essBulk();
+      if (!(q.sd() > 0) || !(ess > 0) || !Double.isFinite(ess) || ess >= essMin) {
+        continue;
+      }
+      need = Math.max(need, kept * essMin / ess);
+    }
+    return need > kept ? (int) Math.min(Integer.MAX_VALUE, Math.ceil(need / 100.0) * 100) : -1;
+  }
+
   private static void printOutputs(PrintWriter out, Result r, SamplerConfig sc, int cores) {
     // model work is summed over parallel tasks, so compare it with the core-seconds available
     out.printf(Locale.ROOT, "estimate: %d sweeps in %s (%.2f sweeps/s; model work %.0f%% of"
@@ -559,6 +579,14 @@ public final class EstimateJob {
       }
       if (r.failures().size() > 10) {
         out.println("  ... (see " + PosteriorWriter.SUMMARY + ")");
+      }
+      int kept = r.globalDraws()[0].length;
+      int need = keptSweepsNeeded(r.summaries(), sc.essMin(), kept);
+      if (need > 0) {
+        out.printf(Locale.ROOT, "At this run's rate every bulk ESS would reach %.0f at about %d"
+            + " kept sweeps per chain (this run kept %d; an extrapolation, R-hat not included):"
+            + " continue with --extend %s --run-id <new id> and sampler.sampling: %d%n",
+            sc.essMin(), need, kept, r.runDir(), need);
       }
     }
     out.flush();

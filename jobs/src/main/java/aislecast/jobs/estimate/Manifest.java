@@ -96,6 +96,8 @@ final class Manifest {
     conv.put("min_ess_bulk_parameter", minName);
     conv.put("global_parameters", names.length);
     conv.put("failures", failures);
+    int need = EstimateJob.keptSweepsNeeded(summaries, config.sampler().essMin(), rec.keptDraws);
+    conv.put("kept_sweeps_needed_estimate", need > 0 ? need : null);
     m.put("convergence", conv);
     // things the user should know about the result (e.g. a variance prior pulling, PriorPull)
     m.put("notes", notes);

@@ -260,6 +260,26 @@ class EstimateJobTest {
   }
 
   @Test
+  void keptSweepsNeededScalesTheSlowestEssToTheLimit() {
+    // bulk ESS 30 and 120 after 1,500 kept sweeps, limit 400: the slower one needs
+    // 1,500 * 400 / 30 = 20,000 (hand arithmetic); constant draws (sd 0) and parameters already
+    // above the limit do not count
+    var slow = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.1, 30, 40, 0.1);
+    var faster = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.02, 120, 90, 0.1);
+    var held = new aislecast.core.diag.ParameterSummary(0, 0, 0, 0, 0, Double.NaN, Double.NaN,
+        Double.NaN, 0);
+    var fine = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.0, 900, 800, 0.01);
+    assertEquals(20000, EstimateJob.keptSweepsNeeded(
+        new aislecast.core.diag.ParameterSummary[] {faster, slow, held, fine}, 400, 1500));
+    // 1,000 * 400 / 333 = 1,201.2, rounded up to a multiple of 100
+    var near = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.0, 333, 300, 0.1);
+    assertEquals(1300, EstimateJob.keptSweepsNeeded(
+        new aislecast.core.diag.ParameterSummary[] {near}, 400, 1000));
+    assertEquals(-1, EstimateJob.keptSweepsNeeded(
+        new aislecast.core.diag.ParameterSummary[] {fine, held}, 400, 1500));
+  }
+
+  @Test
   void outputsHaveTheDocumentedColumnsAndOneSummaryRowPerGlobalParameter() throws Exception {
     SamplerConfig sc = small(2, 64);
     SparkSession spark = spark("local[2]");
@@ -322,14 +342,22 @@ class EstimateJobTest {
     String[] base = {"estimate", "--input", data.resolve("in").toString(), "--output",
         out.toString(), "--conf", conf.toString(), "--seed", "5"};
     StringWriter err = new StringWriter();
+    StringWriter f1out = new StringWriter();
     int code = Main.commandLine().setErr(new PrintWriter(err, true))
-        .setOut(new PrintWriter(new StringWriter(), true))
+        .setOut(new PrintWriter(f1out, true))
         .execute(concat(base, "--run-id", "f1"));
     assertEquals(3, code, err.toString());
     assertTrue(err.toString().contains("convergence limits not met"), err.toString());
+    assertTrue(err.toString().contains("--extend"), err.toString());
+    assertTrue(f1out.toString().contains("kept sweeps per chain (this run kept 6"),
+        f1out.toString());
     JsonNode strict = new ObjectMapper().readTree(out.resolve("f1/run.json").toFile());
     assertEquals("not_converged", strict.get("status").asText());
     assertTrue(strict.get("convergence").get("failures").size() > 0);
+    // no parameter can reach an ESS of 100,000 in 6 draws per chain: the extrapolation says how
+    // many kept sweeps would (above 6), and the console says how to continue
+    assertTrue(strict.at("/convergence/kept_sweeps_needed_estimate").asInt() > 6,
+        strict.get("convergence").toString());
 
     // the second run also sets variance prior scales far above any variance these data show,
     // so run.json and the console carry PriorPull's notes for sigma_p2 and the V_psi diagonal
