@@ -64,7 +64,7 @@ public final class InProcessRunner {
       blocks.add(b);
       samplers.add(sampler);
     }
-    double[][][] kept = new double[set.chains()][set.samplingSweeps()][];
+    double[][][] kept = new double[set.chains()][set.keptDraws()][];
     double acceptSum = 0;
     for (int sweep = 0; sweep < set.totalSweeps(); sweep++) {
       SweepInput in = Sweeps.input(st, set);
@@ -82,8 +82,10 @@ public final class InProcessRunner {
       }
       if (sweep >= set.warmupSweeps()) {
         acceptSum += stats.meanAcceptance();
+      }
+      if (set.isKept(sweep)) {
         for (int c = 0; c < set.chains(); c++) {
-          kept[c][sweep - set.warmupSweeps()] = st.globals()[c].toFlat();
+          kept[c][set.keptIndex(sweep)] = st.globals()[c].toFlat();
         }
       }
     }

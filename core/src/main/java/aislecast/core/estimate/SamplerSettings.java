@@ -7,7 +7,8 @@ import java.io.Serializable;
  *
  * @param chains number of chains sharing each sweep (default 4)
  * @param warmupSweeps sweeps whose draws are discarded while the local samplers adapt (300)
- * @param samplingSweeps sweeps kept as posterior draws (500)
+ * @param samplingSweeps sweeps after warmup (500); every {@code thin}-th is kept as a posterior
+ *     draw
  * @param localSteps local transitions per store per sweep (default 1; the globals are fixed
  *     within a sweep, so several transitions stay exact)
  * @param leapfrogSteps leapfrog steps per local HMC transition (8)
@@ -19,6 +20,9 @@ import java.io.Serializable;
  * @param momentumPersistence after warmup, each store keeps its local HMC momentum from one
  *     sweep to the next and refreshes it partially with this weight ({@link
  *     aislecast.core.mcmc.Hmc#stepPersistent}); 0 draws a fresh momentum every transition
+ * @param thin keep every {@code thin}-th sampling sweep (1: all); {@code samplingSweeps} must be
+ *     a multiple of it. Thinning only saves storage and memory in long runs: the chains are the
+ *     same, and the kept draws carry somewhat less information than all of them would
  */
 public record SamplerSettings(
     int chains,
@@ -30,8 +34,17 @@ public record SamplerSettings(
     long seed,
     boolean fixLambdaZero,
     boolean ridgeMove,
-    double momentumPersistence)
+    double momentumPersistence,
+    int thin)
     implements Serializable {
+
+  /** Settings that keep every sampling sweep. */
+  public SamplerSettings(int chains, int warmupSweeps, int samplingSweeps, int localSteps,
+      int leapfrogSteps, double targetAccept, long seed, boolean fixLambdaZero, boolean ridgeMove,
+      double momentumPersistence) {
+    this(chains, warmupSweeps, samplingSweeps, localSteps, leapfrogSteps, targetAccept, seed,
+        fixLambdaZero, ridgeMove, momentumPersistence, 1);
+  }
 
   /** Settings with a fresh momentum every local transition (probes and older tests). */
   public SamplerSettings(int chains, int warmupSweeps, int samplingSweeps, int localSteps,
@@ -50,6 +63,9 @@ public record SamplerSettings(
     require(targetAccept > 0 && targetAccept < 1, "target acceptance must be in (0, 1)");
     require(momentumPersistence >= 0 && momentumPersistence < 1,
         "momentum persistence must be in [0, 1)");
+    require(thin >= 1, "thin must be >= 1, got " + thin);
+    require(samplingSweeps % thin == 0, "sampling sweeps (" + samplingSweeps
+        + ") must be a multiple of thin (" + thin + ")");
   }
 
   /** Default of {@link #momentumPersistence} (README, "Estimation: what works and what does not"). */
@@ -60,10 +76,39 @@ public record SamplerSettings(
         DEFAULT_MOMENTUM_PERSISTENCE);
   }
 
-  /** The same settings with another number of kept sweeps (an extended run). */
+  /** The same settings with another number of sampling sweeps (an extended run). */
   public SamplerSettings withSamplingSweeps(int sampling) {
     return new SamplerSettings(chains, warmupSweeps, sampling, localSteps, leapfrogSteps,
-        targetAccept, seed, fixLambdaZero, ridgeMove, momentumPersistence);
+        targetAccept, seed, fixLambdaZero, ridgeMove, momentumPersistence, thin);
+  }
+
+  /** Draws kept per chain: {@code samplingSweeps / thin}. */
+  public int keptDraws() {
+    return samplingSweeps / thin;
+  }
+
+  /** Whether the state after {@code sweep} (0-based) is kept: the last of each thin block. */
+  public boolean isKept(int sweep) {
+    return sweep >= warmupSweeps && (sweep - warmupSweeps + 1) % thin == 0;
+  }
+
+  /** Position among the kept draws of a kept {@code sweep}. */
+  public int keptIndex(int sweep) {
+    return (sweep - warmupSweeps + 1) / thin - 1;
+  }
+
+  /**
+   * The record's text without {@code thin} when it is 1: the text is part of the key that ties
+   * checkpoints to their settings, so runs from before thinning existed still resume and extend.
+   */
+  @Override
+  public String toString() {
+    return "SamplerSettings[chains=" + chains + ", warmupSweeps=" + warmupSweeps
+        + ", samplingSweeps=" + samplingSweeps + ", localSteps=" + localSteps
+        + ", leapfrogSteps=" + leapfrogSteps + ", targetAccept=" + targetAccept + ", seed=" + seed
+        + ", fixLambdaZero=" + fixLambdaZero + ", ridgeMove=" + ridgeMove
+        + ", momentumPersistence=" + momentumPersistence + (thin == 1 ? "" : ", thin=" + thin)
+        + "]";
   }
 
   public int totalSweeps() {

@@ -60,7 +60,7 @@ public final class Sweeps {
     for (int c = 0; c < params.length; c++) {
       chains[c] = sampler.init(storeStream(set.seed(), c, d.storeIndex, -1), params[c], x, kx);
     }
-    return new StoreBlock(d, chains, Heterogeneity.dim(kx), set.samplingSweeps());
+    return new StoreBlock(d, chains, Heterogeneity.dim(kx), set.keptDraws());
   }
 
   /** The broadcast for the driver state's next sweep: globals, shifts to apply and to propose. */
@@ -101,7 +101,7 @@ public final class Sweeps {
     StoreSampler.Settings local =
         new StoreSampler.Settings(set.localWarmup(), set.leapfrogSteps(), set.targetAccept(),
             set.momentumPersistence());
-    boolean keep = sweep >= set.warmupSweeps();
+    boolean keep = set.isKept(sweep);
     for (int c = 0; c < b.chains.length; c++) {
       StoreChainState s = b.chains[c];
       if (in.applyShift()[c] != null) {

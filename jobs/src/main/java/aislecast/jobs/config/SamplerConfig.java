@@ -9,7 +9,7 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  *
  * @param chains chains that share every sweep (default 4, at least 2 so R-hat exists)
  * @param warmup sweeps discarded while the local samplers adapt (300)
- * @param sampling sweeps kept as posterior draws (500, at least 4)
+ * @param sampling sweeps after warmup (500, at least 4); every {@code thin}-th is kept
  * @param localSteps local transitions per store and chain in one sweep (1)
  * @param leapfrogSteps leapfrog steps per local HMC transition (8)
  * @param targetAccept local HMC acceptance the step size adapts to (0.8)
@@ -32,6 +32,9 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  * @param momentumPersistence after warmup, the weight with which each store's local HMC keeps
  *     its momentum from one sweep to the next (see {@code SamplerSettings}); 0 draws a fresh one
  *     every transition
+ * @param thin keep every thin-th sampling sweep as a draw (1: all); {@code sampling} must be a
+ *     multiple of it. For long runs, where every kept draw of every store is held in memory,
+ *     checkpointed and written out
  */
 public record SamplerConfig(
     @JsonProperty("chains") int chains,
@@ -49,7 +52,8 @@ public record SamplerConfig(
     @JsonProperty("sum_group") int sumGroup,
     @JsonProperty("ridge_move") boolean ridgeMove,
     @JsonProperty("fix_lambda_zero") boolean fixLambdaZero,
-    @JsonProperty("momentum_persistence") double momentumPersistence) {
+    @JsonProperty("momentum_persistence") double momentumPersistence,
+    @JsonProperty("thin") int thin) {
 
   public static final int DEFAULT_CHAINS = 4;
   public static final int DEFAULT_WARMUP = 300;
@@ -84,6 +88,19 @@ public record SamplerConfig(
     require(sumGroup >= 1, "sampler.sum_group", sumGroup + " (need >= 1)");
     require(momentumPersistence >= 0 && momentumPersistence < 1, "sampler.momentum_persistence",
         momentumPersistence + " (need a value in [0, 1))");
+    require(thin >= 1, "sampler.thin", thin + " (need >= 1)");
+    require(sampling % thin == 0, "sampler.sampling", sampling + " (need a multiple of"
+        + " sampler.thin = " + thin + ")");
+  }
+
+  /** Settings that keep every sampling sweep. */
+  public SamplerConfig(int chains, int warmup, int sampling, int localSteps, int leapfrogSteps,
+      double targetAccept, int shopperDraws, int checkpointEvery, double rhatMax, double essMin,
+      int progressEvery, int partitions, int sumGroup, boolean ridgeMove, boolean fixLambdaZero,
+      double momentumPersistence) {
+    this(chains, warmup, sampling, localSteps, leapfrogSteps, targetAccept, shopperDraws,
+        checkpointEvery, rhatMax, essMin, progressEvery, partitions, sumGroup, ridgeMove,
+        fixLambdaZero, momentumPersistence, 1);
   }
 
   /** YAML entry point: absent keys take their defaults (a primitive cannot say "absent"). */
@@ -104,7 +121,8 @@ public record SamplerConfig(
       @JsonProperty("sum_group") Integer sumGroup,
       @JsonProperty("ridge_move") Boolean ridgeMove,
       @JsonProperty("fix_lambda_zero") Boolean fixLambdaZero,
-      @JsonProperty("momentum_persistence") Double momentumPersistence) {
+      @JsonProperty("momentum_persistence") Double momentumPersistence,
+      @JsonProperty("thin") Integer thin) {
     return new SamplerConfig(
         or(chains, DEFAULT_CHAINS),
         or(warmup, DEFAULT_WARMUP),
@@ -121,12 +139,13 @@ public record SamplerConfig(
         or(sumGroup, DEFAULT_SUM_GROUP),
         or(ridgeMove, true),
         or(fixLambdaZero, false),
-        or(momentumPersistence, DEFAULT_MOMENTUM_PERSISTENCE));
+        or(momentumPersistence, DEFAULT_MOMENTUM_PERSISTENCE),
+        or(thin, 1));
   }
 
   public static SamplerConfig defaults() {
     return fromYaml(null, null, null, null, null, null, null, null, null, null, null, null, null,
-        null, null, null);
+        null, null, null, null);
   }
 
   /** Copy with other sweep counts (tests, benchmarks and the demo's reduced run). */

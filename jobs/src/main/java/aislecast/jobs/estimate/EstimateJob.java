@@ -158,7 +158,7 @@ public final class EstimateJob {
   public static SamplerSettings samplerSettings(SamplerConfig s, long seed) {
     return new SamplerSettings(s.chains(), s.warmup(), s.sampling(), s.localSteps(),
         s.leapfrogSteps(), s.targetAccept(), seed, s.fixLambdaZero(), s.ridgeMove(),
-        s.momentumPersistence());
+        s.momentumPersistence(), s.thin());
   }
 
   /**
@@ -284,7 +284,7 @@ public final class EstimateJob {
             "--extend " + o.extend() + ": no final state in " + earlier.location()
                 + " (is it a finished estimate run folder?)"));
         ChainRecord saved = earlier.readRecord(last);
-        int had = saved.samplingCapacity();
+        int had = saved.samplingCapacity() * set.thin();
         if (saved.nextSweep() != set.warmupSweeps() + had
             || !saved.key.equals(runKey(problem, set.withSamplingSweeps(had), config))) {
           throw new RunFailure(RunFailure.BAD_INPUT, "cannot extend " + o.extend() + ": it was"
@@ -292,12 +292,12 @@ public final class EstimateJob {
               + " the same --input, --seed and configuration, only sampler.sampling raised");
         }
         if (set.samplingSweeps() <= had) {
-          throw new RunFailure(RunFailure.BAD_INPUT, "--extend " + o.extend() + ": that run kept "
-              + had + " sweeps per chain and sampler.sampling is " + set.samplingSweeps()
+          throw new RunFailure(RunFailure.BAD_INPUT, "--extend " + o.extend() + ": that run made "
+              + had + " sampling sweeps per chain and sampler.sampling is " + set.samplingSweeps()
               + "; set sampler.sampling to the total wanted after extending, above " + had);
         }
-        loop.extend(earlier, last, saved.extendedTo(key, set.samplingSweeps(), o.extend()));
-        out.println("  extending " + o.extend() + ": its " + had + " kept sweeps per chain"
+        loop.extend(earlier, last, saved.extendedTo(key, set.keptDraws(), o.extend()));
+        out.println("  extending " + o.extend() + ": its " + had + " sampling sweeps per chain"
             + " continue to " + set.samplingSweeps());
       } else if (o.warmStart() != null) {
         WarmStart warm = WarmStart.read(jsc, o.warmStart(), problem, set.chains());
@@ -527,14 +527,14 @@ public final class EstimateJob {
   }
 
   /**
-   * Kept sweeps per chain, in all, at which every global parameter's bulk ESS would reach
-   * {@code essMin} if it kept growing in proportion to the kept sweeps, as it does once chains
-   * have settled (Vehtari et al. 2021, section 4): {@code kept * essMin / ess} for the slowest
-   * parameter, rounded up to a multiple of 100. An extrapolation for planning an {@code --extend},
+   * Sweeps per chain, in all, at which every global parameter's bulk ESS would reach
+   * {@code essMin} if it kept growing in proportion to the sweeps, as it does once chains have
+   * settled (Vehtari et al. 2021, section 4): {@code kept * essMin / ess} for the slowest
+   * parameter, {@code kept} the sweeps the summaries come from, rounded up to a multiple of 100. An extrapolation for planning an {@code --extend},
    * not a promise; R-hat is not extrapolated. -1 when every bulk ESS meets the limit or none is
    * usable (constant or non-finite draws).
    */
-  public static int keptSweepsNeeded(ParameterSummary[] summaries, double essMin, int kept) {
+  public static int sweepsNeeded(ParameterSummary[] summaries, double essMin, int kept) {
     double need = 0;
     for (ParameterSummary q : summaries) {
       double ess = q.essBulk();
@@ -544,6 +544,25 @@ public final class EstimateJob {
       need = Math.max(need, kept * essMin / ess);
     }
     return need > kept ? (int) Math.min(Integer.MAX_VALUE, Math.ceil(need / 100.0) * 100) : -1;
+  }
+
+  /**
+   * {@link #sweepsNeeded} for a run of {@code sampling} sampling sweeps, every
+   * {@code thin}-th kept, in sampling sweeps (what {@code sampler.sampling} would have to be).
+   */
+  public static int samplingSweepsNeeded(ParameterSummary[] summaries, double essMin,
+      int sampling, int thin) {
+    int kept = sweepsNeeded(summaries, essMin, sampling);
+    if (kept < 0) {
+      return -1;
+    }
+    // a multiple of 100 and of thin, so it is a valid sampler.sampling
+    long step = 100L * thin / gcd(100, thin);
+    return (int) Math.min(Integer.MAX_VALUE, (kept + step - 1) / step * step);
+  }
+
+  private static int gcd(int a, int b) {
+    return b == 0 ? a : gcd(b, a % b);
   }
 
   private static void printOutputs(PrintWriter out, Result r, SamplerConfig sc, int cores) {
@@ -580,13 +599,13 @@ public final class EstimateJob {
       if (r.failures().size() > 10) {
         out.println("  ... (see " + PosteriorWriter.SUMMARY + ")");
       }
-      int kept = r.globalDraws()[0].length;
-      int need = keptSweepsNeeded(r.summaries(), sc.essMin(), kept);
+      int sampling = r.globalDraws()[0].length * sc.thin();
+      int need = samplingSweepsNeeded(r.summaries(), sc.essMin(), sampling, sc.thin());
       if (need > 0) {
         out.printf(Locale.ROOT, "At this run's rate every bulk ESS would reach %.0f at about %d"
-            + " kept sweeps per chain (this run kept %d; an extrapolation, R-hat not included):"
-            + " continue with --extend %s --run-id <new id> and sampler.sampling: %d%n",
-            sc.essMin(), need, kept, r.runDir(), need);
+            + " sampling sweeps per chain (this run made %d; an extrapolation, R-hat not"
+            + " included): continue with --extend %s --run-id <new id> and sampler.sampling: %d%n",
+            sc.essMin(), need, sampling, r.runDir(), need);
       }
     }
     out.flush();

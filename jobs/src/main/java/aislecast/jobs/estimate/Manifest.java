@@ -52,6 +52,8 @@ final class Manifest {
     s.put("chains", set.chains());
     s.put("warmup_sweeps", set.warmupSweeps());
     s.put("sampling_sweeps", set.samplingSweeps());
+    s.put("thin", set.thin());
+    s.put("kept_draws", rec.keptDraws);
     s.put("sweeps_done", rec.nextSweep());
     s.put("local_acceptance_warmup", set.warmupSweeps() == 0 ? null
         : rec.acceptWarmup / set.warmupSweeps());
@@ -96,8 +98,9 @@ final class Manifest {
     conv.put("min_ess_bulk_parameter", minName);
     conv.put("global_parameters", names.length);
     conv.put("failures", failures);
-    int need = EstimateJob.keptSweepsNeeded(summaries, config.sampler().essMin(), rec.keptDraws);
-    conv.put("kept_sweeps_needed_estimate", need > 0 ? need : null);
+    int need = EstimateJob.samplingSweepsNeeded(summaries, config.sampler().essMin(),
+        rec.keptDraws * set.thin(), set.thin());
+    conv.put("sampling_sweeps_needed_estimate", need > 0 ? need : null);
     m.put("convergence", conv);
     // things the user should know about the result (e.g. a variance prior pulling, PriorPull)
     m.put("notes", notes);

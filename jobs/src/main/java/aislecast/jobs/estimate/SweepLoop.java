@@ -86,7 +86,7 @@ final class SweepLoop {
   void start(String key, Globals[] globals, Map<String, double[][]> warm) {
     SamplerSettings set = cfg.sampler();
     record = new ChainRecord(key, productIds(), DriverState.start(globals), set.chains(),
-        set.samplingSweeps());
+        set.keptDraws());
     LocalParams[] params = Sweeps.localParams(globals);
     Broadcast<LocalParams[]> bp = jsc.broadcast(params);
     Broadcast<Map<String, double[][]>> bw = jsc.broadcast(warm);
@@ -223,11 +223,13 @@ final class SweepLoop {
     if (sweep >= set.warmupSweeps()) {
       record.acceptSampling += merged.meanAcceptance();
       record.divergentSampling += merged.totalDivergent();
-      Globals[] g = record.state.globals();
-      for (int c = 0; c < g.length; c++) {
-        record.kept[c][sweep - set.warmupSweeps()] = g[c].toFlat();
+      if (set.isKept(sweep)) {
+        Globals[] g = record.state.globals();
+        for (int c = 0; c < g.length; c++) {
+          record.kept[c][set.keptIndex(sweep)] = g[c].toFlat();
+        }
+        record.keptDraws = set.keptIndex(sweep) + 1;
       }
-      record.keptDraws = sweep - set.warmupSweeps() + 1;
     } else {
       record.acceptWarmup += merged.meanAcceptance();
       record.divergentWarmup += merged.totalDivergent();

@@ -73,6 +73,11 @@ class RunConfigLoaderTest {
         persistence.getMessage());
     assertEquals(0.0, RunConfigLoader.parse("sampler:\n  momentum_persistence: 0\n", "x.yaml")
         .sampler().momentumPersistence());
+    ConfigException thin = assertThrows(ConfigException.class,
+        () -> RunConfigLoader.parse("sampler:\n  sampling: 500\n  thin: 3\n", "x.yaml"));
+    assertTrue(thin.getMessage().contains("multiple of sampler.thin"), thin.getMessage());
+    assertEquals(1, RunConfigLoader.parse("sampler: {}\n", "x.yaml").sampler().thin());
+    assertEquals(5, RunConfigLoader.parse("sampler:\n  thin: 5\n", "x.yaml").sampler().thin());
     ConfigException missing = assertThrows(ConfigException.class,
         () -> RunConfigLoader.load(Path.of("no-such-file.yaml")));
     assertTrue(missing.getMessage().contains("no-such-file.yaml"), missing.getMessage());

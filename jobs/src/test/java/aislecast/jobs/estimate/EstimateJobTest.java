@@ -260,7 +260,31 @@ class EstimateJobTest {
   }
 
   @Test
-  void keptSweepsNeededScalesTheSlowestEssToTheLimit() {
+  void aThinnedRunKeepsEveryOtherDrawOfTheSameChains() throws Exception {
+    SamplerConfig all = small(2, 64, 8);
+    SamplerConfig half = new SamplerConfig(3, 8, 8, 1, 8, 0.8, 200, 4, 1.01, 400, 5, 2, 64,
+        true, false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE, 2);
+    SparkSession spark = spark("local[2]");
+    EstimateJob.Result thinned = run(spark, half, options("t2"));
+    // the Spark loop against the in-process runner, both thinned
+    assertSameDraws(reference(thinned, half), thinned.globalDraws());
+    EstimateJob.Result every = run(spark, all, options("t1"));
+    for (int c = 0; c < 3; c++) {
+      assertEquals(4, thinned.globalDraws()[c].length);
+      for (int d = 0; d < 4; d++) {
+        assertArrayEquals(every.globalDraws()[c][2 * d + 1], thinned.globalDraws()[c][d]);
+      }
+    }
+    Dataset<Row> s = spark.read().parquet(out.resolve("t2/posterior/store_draws").toString());
+    assertEquals((long) STORES * 3 * 4 * thinned.problem().dims().kpsi(), s.count());
+    JsonNode manifest = new ObjectMapper().readTree(out.resolve("t2/run.json").toFile());
+    assertEquals(2, manifest.at("/sampler/thin").asInt());
+    assertEquals(4, manifest.at("/sampler/kept_draws").asInt());
+    assertEquals(8, manifest.at("/sampler/sampling_sweeps").asInt());
+  }
+
+  @Test
+  void sweepsNeededScalesTheSlowestEssToTheLimit() {
     // bulk ESS 30 and 120 after 1,500 kept sweeps, limit 400: the slower one needs
     // 1,500 * 400 / 30 = 20,000 (hand arithmetic); constant draws (sd 0) and parameters already
     // above the limit do not count
@@ -269,14 +293,17 @@ class EstimateJobTest {
     var held = new aislecast.core.diag.ParameterSummary(0, 0, 0, 0, 0, Double.NaN, Double.NaN,
         Double.NaN, 0);
     var fine = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.0, 900, 800, 0.01);
-    assertEquals(20000, EstimateJob.keptSweepsNeeded(
+    assertEquals(20000, EstimateJob.sweepsNeeded(
         new aislecast.core.diag.ParameterSummary[] {faster, slow, held, fine}, 400, 1500));
     // 1,000 * 400 / 333 = 1,201.2, rounded up to a multiple of 100
     var near = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.0, 333, 300, 0.1);
-    assertEquals(1300, EstimateJob.keptSweepsNeeded(
+    assertEquals(1300, EstimateJob.sweepsNeeded(
         new aislecast.core.diag.ParameterSummary[] {near}, 400, 1000));
-    assertEquals(-1, EstimateJob.keptSweepsNeeded(
+    assertEquals(-1, EstimateJob.sweepsNeeded(
         new aislecast.core.diag.ParameterSummary[] {fine, held}, 400, 1500));
+    // as a sampler.sampling value with thin 3: 1,300 rounded up to a multiple of 300
+    assertEquals(1500, EstimateJob.samplingSweepsNeeded(
+        new aislecast.core.diag.ParameterSummary[] {near}, 400, 1000, 3));
   }
 
   @Test
@@ -349,14 +376,14 @@ class EstimateJobTest {
     assertEquals(3, code, err.toString());
     assertTrue(err.toString().contains("convergence limits not met"), err.toString());
     assertTrue(err.toString().contains("--extend"), err.toString());
-    assertTrue(f1out.toString().contains("kept sweeps per chain (this run kept 6"),
+    assertTrue(f1out.toString().contains("sampling sweeps per chain (this run made 6"),
         f1out.toString());
     JsonNode strict = new ObjectMapper().readTree(out.resolve("f1/run.json").toFile());
     assertEquals("not_converged", strict.get("status").asText());
     assertTrue(strict.get("convergence").get("failures").size() > 0);
     // no parameter can reach an ESS of 100,000 in 6 draws per chain: the extrapolation says how
     // many kept sweeps would (above 6), and the console says how to continue
-    assertTrue(strict.at("/convergence/kept_sweeps_needed_estimate").asInt() > 6,
+    assertTrue(strict.at("/convergence/sampling_sweeps_needed_estimate").asInt() > 6,
         strict.get("convergence").toString());
 
     // the second run also sets variance prior scales far above any variance these data show,
