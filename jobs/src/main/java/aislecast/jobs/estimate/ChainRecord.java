@@ -41,15 +41,15 @@ final class ChainRecord implements Serializable {
   }
 
   /**
-   * This record with room for {@code sampling} kept sweeps under a new key, every draw and total
-   * so far carried over: the start of a run that extends the one this record ends.
+   * This record with room for {@code capacity} kept draws per chain under a new key, every draw
+   * and total so far carried over: the start of a run that extends the one this record ends.
    */
-  ChainRecord extendedTo(String newKey, int sampling, String fromRun) {
-    if (sampling < keptDraws) {
-      throw new IllegalArgumentException(sampling + " kept sweeps is fewer than the "
+  ChainRecord extendedTo(String newKey, int capacity, String fromRun) {
+    if (capacity < keptDraws) {
+      throw new IllegalArgumentException(capacity + " kept draws is fewer than the "
           + keptDraws + " kept already");
     }
-    ChainRecord r = new ChainRecord(newKey, productIds, state, kept.length, sampling);
+    ChainRecord r = new ChainRecord(newKey, productIds, state, kept.length, capacity);
     for (int c = 0; c < kept.length; c++) {
       System.arraycopy(kept[c], 0, r.kept[c], 0, keptDraws);
     }
@@ -66,8 +66,8 @@ final class ChainRecord implements Serializable {
     return r;
   }
 
-  /** Kept sweeps this record has room for. */
-  int samplingCapacity() {
+  /** Kept draws per chain this record has room for. */
+  int keptCapacity() {
     return kept.length == 0 ? 0 : kept[0].length;
   }
 

@@ -284,7 +284,7 @@ public final class EstimateJob {
             "--extend " + o.extend() + ": no final state in " + earlier.location()
                 + " (is it a finished estimate run folder?)"));
         ChainRecord saved = earlier.readRecord(last);
-        int had = saved.samplingCapacity() * set.thin();
+        int had = saved.keptCapacity() * set.thin();
         if (saved.nextSweep() != set.warmupSweeps() + had
             || !saved.key.equals(runKey(problem, set.withSamplingSweeps(had), config))) {
           throw new RunFailure(RunFailure.BAD_INPUT, "cannot extend " + o.extend() + ": it was"
@@ -528,11 +528,11 @@ public final class EstimateJob {
 
   /**
    * Sweeps per chain, in all, at which every global parameter's bulk ESS would reach
-   * {@code essMin} if it kept growing in proportion to the sweeps, as it does once chains have
-   * settled (Vehtari et al. 2021, section 4): {@code kept * essMin / ess} for the slowest
-   * parameter, {@code kept} the sweeps the summaries come from, rounded up to a multiple of 100. An extrapolation for planning an {@code --extend},
-   * not a promise; R-hat is not extrapolated. -1 when every bulk ESS meets the limit or none is
-   * usable (constant or non-finite draws).
+   * {@code essMin} if it kept growing in proportion to the sweeps, as it does for a chain past
+   * its transient (common practice): {@code kept * essMin / ess} for the slowest parameter,
+   * {@code kept} being the sweeps the summaries come from, rounded up to a multiple of 100. An
+   * extrapolation for planning an {@code --extend}, not a promise; R-hat is not extrapolated.
+   * -1 when every bulk ESS meets the limit or none is usable (constant or non-finite draws).
    */
   public static int sweepsNeeded(ParameterSummary[] summaries, double essMin, int kept) {
     double need = 0;

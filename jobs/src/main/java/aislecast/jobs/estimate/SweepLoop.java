@@ -129,7 +129,7 @@ final class SweepLoop {
   void extend(StateCheckpoints earlier, org.apache.hadoop.fs.Path sweepDir, ChainRecord grown) {
     record = grown;
     int kpsi = dims.kpsi();
-    int capacity = grown.samplingCapacity();
+    int capacity = grown.keptCapacity();
     state = earlier.readBlocks(sweepDir)
         .map(b -> new SweptStore(b.withCapacity(kpsi, capacity), null, 0L))
         .setName("stores@" + grown.nextSweep() + " (extended)");
