@@ -310,9 +310,11 @@ public final class EstimateJob {
             Map.of());
       }
       timings.put("initialise", secondsSince(t));
-      out.printf(Locale.ROOT, "  sampler: %d chains, %d warmup + %d kept sweeps, %d partitions,"
+      out.printf(Locale.ROOT, "  sampler: %d chains, %d warmup + %d kept sweeps%s, %d partitions,"
           + " checkpoint every %d sweeps%n", set.chains(), set.warmupSweeps(),
-          set.samplingSweeps(), partitions, sc.checkpointEvery());
+          set.samplingSweeps(), set.thin() == 1 ? ""
+              : " (every " + set.thin() + "th recorded: " + set.keptDraws() + " draws per chain)",
+          partitions, sc.checkpointEvery());
       out.flush();
 
       // 5. The sweeps.
