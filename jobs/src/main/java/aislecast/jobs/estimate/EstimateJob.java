@@ -313,7 +313,7 @@ public final class EstimateJob {
       out.printf(Locale.ROOT, "  sampler: %d chains, %d warmup + %d kept sweeps%s, %d partitions,"
           + " checkpoint every %d sweeps%n", set.chains(), set.warmupSweeps(),
           set.samplingSweeps(), set.thin() == 1 ? ""
-              : " (every " + set.thin() + "th recorded: " + set.keptDraws() + " draws per chain)",
+              : " (1 in " + set.thin() + " recorded: " + set.keptDraws() + " draws per chain)",
           partitions, sc.checkpointEvery());
       out.flush();
 
