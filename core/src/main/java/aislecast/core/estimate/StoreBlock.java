@@ -39,17 +39,22 @@ public final class StoreBlock implements Serializable {
     return b;
   }
 
-  /** Deep copy, so a new sweep never mutates the previous sweep's (possibly cached) blocks. */
+  /**
+   * The block a new sweep advances, so that it never changes what the previous sweep's (possibly
+   * cached) block holds: the chains' states are copied. The kept draws' arrays are shared, not
+   * copied. A sweep only writes past {@code keptDraws}, which the earlier block does not count as
+   * its own, and a sweep computed again (a retried or recomputed task) writes the very same values
+   * there, every random stream being keyed by sweep. Copying them would cost every kept draw of
+   * every store on every sweep, which in a long unthinned run grows to most of the sweep's memory
+   * traffic.
+   */
   public StoreBlock copy() {
     StoreChainState[] c = new StoreChainState[chains.length];
     for (int i = 0; i < c.length; i++) {
       c[i] = chains[i].copy();
     }
     StoreBlock b = new StoreBlock(data, c, 0, 0);
-    b.psiDraws = new double[psiDraws.length][];
-    for (int i = 0; i < psiDraws.length; i++) {
-      b.psiDraws[i] = psiDraws[i].clone();
-    }
+    b.psiDraws = psiDraws.clone();
     b.keptDraws = keptDraws;
     return b;
   }

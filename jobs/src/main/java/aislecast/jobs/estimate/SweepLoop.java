@@ -298,7 +298,7 @@ final class SweepLoop {
     @Override
     public SweptStore call(SweptStore prev) {
       long t0 = System.nanoTime();
-      // the previous RDD is cached: never mutate its blocks
+      // the previous RDD is cached: never change what its blocks hold (StoreBlock.copy)
       StoreBlock b = prev.block.copy();
       StoreData d = b.data;
       SweepStats stats = new SweepStats(dims, set.chains());
