@@ -35,6 +35,11 @@ import com.fasterxml.jackson.annotation.JsonProperty;
  * @param thin keep every thin-th sampling sweep as a draw (1: all); {@code sampling} must be a
  *     multiple of it. For long runs, where every kept draw of every store is held in memory,
  *     checkpointed and written out
+ * @param stopWhenConverged treat {@code sampling} as a ceiling: at each progress line of the
+ *     sampling phase, stop once every global parameter is within {@code rhatMax} and {@code
+ *     essMin}, and publish the run as if {@code sampling} had been the sweeps done (false). It
+ *     decides only when the run ends, never what a sweep draws, so a stopped run may be resumed
+ *     with it switched on or off
  */
 public record SamplerConfig(
     @JsonProperty("chains") int chains,
@@ -53,7 +58,8 @@ public record SamplerConfig(
     @JsonProperty("ridge_move") boolean ridgeMove,
     @JsonProperty("fix_lambda_zero") boolean fixLambdaZero,
     @JsonProperty("momentum_persistence") double momentumPersistence,
-    @JsonProperty("thin") int thin) {
+    @JsonProperty("thin") int thin,
+    @JsonProperty("stop_when_converged") boolean stopWhenConverged) {
 
   public static final int DEFAULT_CHAINS = 4;
   public static final int DEFAULT_WARMUP = 300;
@@ -100,7 +106,7 @@ public record SamplerConfig(
       double momentumPersistence) {
     this(chains, warmup, sampling, localSteps, leapfrogSteps, targetAccept, shopperDraws,
         checkpointEvery, rhatMax, essMin, progressEvery, partitions, sumGroup, ridgeMove,
-        fixLambdaZero, momentumPersistence, 1);
+        fixLambdaZero, momentumPersistence, 1, false);
   }
 
   /** YAML entry point: absent keys take their defaults (a primitive cannot say "absent"). */
@@ -122,7 +128,8 @@ public record SamplerConfig(
       @JsonProperty("ridge_move") Boolean ridgeMove,
       @JsonProperty("fix_lambda_zero") Boolean fixLambdaZero,
       @JsonProperty("momentum_persistence") Double momentumPersistence,
-      @JsonProperty("thin") Integer thin) {
+      @JsonProperty("thin") Integer thin,
+      @JsonProperty("stop_when_converged") Boolean stopWhenConverged) {
     return new SamplerConfig(
         or(chains, DEFAULT_CHAINS),
         or(warmup, DEFAULT_WARMUP),
@@ -140,33 +147,34 @@ public record SamplerConfig(
         or(ridgeMove, true),
         or(fixLambdaZero, false),
         or(momentumPersistence, DEFAULT_MOMENTUM_PERSISTENCE),
-        or(thin, 1));
+        or(thin, 1),
+        or(stopWhenConverged, false));
   }
 
   public static SamplerConfig defaults() {
     return fromYaml(null, null, null, null, null, null, null, null, null, null, null, null, null,
-        null, null, null, null);
+        null, null, null, null, null);
   }
 
   /** Copy with other sweep counts (tests, benchmarks and the demo's reduced run). */
   public SamplerConfig withSweeps(int newWarmup, int newSampling) {
     return new SamplerConfig(chains, newWarmup, newSampling, localSteps, leapfrogSteps,
         targetAccept, shopperDraws, checkpointEvery, rhatMax, essMin, progressEvery, partitions,
-        sumGroup, ridgeMove, fixLambdaZero, momentumPersistence);
+        sumGroup, ridgeMove, fixLambdaZero, momentumPersistence, thin, stopWhenConverged);
   }
 
   /** Copy with other convergence limits. */
   public SamplerConfig withLimits(double newRhatMax, double newEssMin) {
     return new SamplerConfig(chains, warmup, sampling, localSteps, leapfrogSteps, targetAccept,
         shopperDraws, checkpointEvery, newRhatMax, newEssMin, progressEvery, partitions, sumGroup,
-        ridgeMove, fixLambdaZero, momentumPersistence);
+        ridgeMove, fixLambdaZero, momentumPersistence, thin, stopWhenConverged);
   }
 
   /** Copy with other Spark layout settings. */
   public SamplerConfig withLayout(int newPartitions, int newSumGroup, int newCheckpointEvery) {
     return new SamplerConfig(chains, warmup, sampling, localSteps, leapfrogSteps, targetAccept,
         shopperDraws, newCheckpointEvery, rhatMax, essMin, progressEvery, newPartitions,
-        newSumGroup, ridgeMove, fixLambdaZero, momentumPersistence);
+        newSumGroup, ridgeMove, fixLambdaZero, momentumPersistence, thin, stopWhenConverged);
   }
 
   public int totalSweeps() {

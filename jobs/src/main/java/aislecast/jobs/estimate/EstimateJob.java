@@ -266,7 +266,7 @@ public final class EstimateJob {
           : Math.max(1, Math.min(problem.stores().size(), 2 * jsc.defaultParallelism()));
       SweepLoop.Settings loopSettings = new SweepLoop.Settings(set, priors, partitions,
           sc.sumGroup(), sc.checkpointEvery(), sc.progressEvery(), o.stopAtSweep(),
-          o.failAtSweep());
+          o.failAtSweep(), sc.stopWhenConverged(), sc.rhatMax(), sc.essMin());
       loop = new SweepLoop(jsc, problem, loopSettings, work, log);
       if (o.resume()) {
         Path latest = work.latest().orElseThrow();
@@ -332,6 +332,14 @@ public final class EstimateJob {
         return new Result(Status.STOPPED, null, Globals.parameterNames(dims), rec.kept, null,
             List.of(), rec.nextSweep(), rec.sweepSeconds, rec.modelSeconds,
             rec.aggregateSeconds, rec.driverSeconds, problem);
+      }
+
+      if (loop.stoppedEarly()) {
+        // published as the run with this many sampling sweeps would be (same draws: no sweep
+        // depends on the total), so it resumes, extends and reads back like one
+        set = set.withSamplingSweeps(rec.nextSweep() - set.warmupSweeps());
+        loop.endEarly(runKey(problem, set, config));
+        rec = loop.record();
       }
 
       // 6. Diagnostics.

@@ -53,6 +53,9 @@ final class Manifest {
     s.put("warmup_sweeps", set.warmupSweeps());
     s.put("sampling_sweeps", set.samplingSweeps());
     s.put("thin", set.thin());
+    // sampling_sweeps is what was done; with stop_when_converged the configured count is a ceiling
+    s.put("stop_when_converged", config.sampler().stopWhenConverged());
+    s.put("sampling_sweeps_max", config.sampler().sampling());
     s.put("kept_draws", rec.keptDraws);
     s.put("sweeps_done", rec.nextSweep());
     s.put("local_acceptance_warmup", set.warmupSweeps() == 0 ? null

@@ -1,6 +1,7 @@
 package aislecast.jobs.estimate;
 
 import aislecast.core.diag.Diagnostics;
+import aislecast.core.diag.ParameterSummary;
 import aislecast.core.estimate.DriverState;
 import aislecast.core.estimate.SamplerSettings;
 import aislecast.core.estimate.StoreBlock;
@@ -45,9 +46,12 @@ final class SweepLoop {
    * @param stopAtSweep stop (with a checkpoint) once this many sweeps are done; -1 runs all
    * @param failAtSweep fault test: the first attempt of partition 0's task in this sweep throws;
    *     -1 never
+   * @param stopWhenConverged end the sampling early, at a progress line where every global
+   *     parameter is within {@code rhatMax} and {@code essMin} ({@link #stoppedEarly})
    */
   record Settings(SamplerSettings sampler, Priors priors, int partitions, int sumGroup,
-      int checkpointEvery, int progressEvery, int stopAtSweep, int failAtSweep) {}
+      int checkpointEvery, int progressEvery, int stopAtSweep, int failAtSweep,
+      boolean stopWhenConverged, double rhatMax, double essMin) {}
 
   private static final StorageLevel LEVEL = StorageLevel.MEMORY_AND_DISK();
 
@@ -66,6 +70,7 @@ final class SweepLoop {
   private double worstRhat = Double.NaN;
   private String worstParameter = "";
   private int lastCheckpoint = -1;
+  private boolean stoppedEarly;
 
   SweepLoop(JavaSparkContext jsc, EstimationProblem problem, Settings cfg,
       StateCheckpoints checkpoints, RunLog log) {
@@ -152,7 +157,10 @@ final class SweepLoop {
     return state;
   }
 
-  /** Runs sweeps until all are done (true) or the stop sweep is reached (false). */
+  /**
+   * Runs sweeps until all are done, or every limit is met with {@code stopWhenConverged} (true,
+   * {@link #stoppedEarly} tells which), or the stop sweep is reached (false).
+   */
   boolean run() {
     SamplerSettings set = cfg.sampler();
     int total = set.totalSweeps();
@@ -198,9 +206,68 @@ final class SweepLoop {
       }
       if (done % cfg.progressEvery() == 0 || done == total) {
         progress(done, total);
+        if (done < total && convergedAt(done)) {
+          stoppedEarly = true;
+          return true;
+        }
       }
     }
     return true;
+  }
+
+  /**
+   * Whether the sampling may end after {@code done} sweeps: asked for, in the sampling phase at a
+   * kept sweep, and every global parameter within the limits by the very test the finished run
+   * applies ({@link EstimateJob#convergenceFailures}). Checked at progress lines only, so the
+   * run looks at its diagnostics a bounded number of times (each look is a chance to stop on a
+   * lucky fluctuation: README, "Usage").
+   */
+  private boolean convergedAt(int done) {
+    SamplerSettings set = cfg.sampler();
+    int sampled = done - set.warmupSweeps();
+    if (!cfg.stopWhenConverged() || sampled <= 0 || sampled % set.thin() != 0
+        || record.keptDraws < Diagnostics.MIN_DRAWS) {
+      return false;
+    }
+    ParameterSummary[] summaries = new ParameterSummary[names.length];
+    for (int p = 0; p < names.length; p++) {
+      summaries[p] = Diagnostics.summarize(record.chainsOf(p));
+    }
+    if (!EstimateJob.convergenceFailures(names, summaries, cfg.rhatMax(), cfg.essMin())
+        .isEmpty()) {
+      return false;
+    }
+    log.info("converged_early", String.format(java.util.Locale.ROOT, "  every global parameter"
+        + " within the limits (R-hat <= %s, bulk ESS >= %s) after %d of %d sampling sweeps:"
+        + " stopping here (sampler.stop_when_converged)", plain(cfg.rhatMax()),
+        plain(cfg.essMin()), sampled, set.samplingSweeps()), "sampling_sweeps", sampled, "sampling_max", set.samplingSweeps());
+    return true;
+  }
+
+  /**
+   * After an early stop: the record and every store block shrink to the draws kept, under
+   * {@code key} (that of a run whose sampling sweeps are those done), so the final state is what
+   * that shorter run ends with.
+   */
+  void endEarly(String key) {
+    record = record.extendedTo(key, record.keptDraws, record.extendsRun);
+    int kpsi = dims.kpsi();
+    int kept = record.keptDraws;
+    JavaRDD<SweptStore> trimmed = state
+        .map(s -> new SweptStore(s.block.withCapacity(kpsi, kept), null, 0L))
+        .setName("stores@" + record.nextSweep() + " (" + kept + " kept)");
+    trimmed.persist(LEVEL).count();
+    state.unpersist(false);
+    state = trimmed;
+  }
+
+  private static String plain(double v) {
+    return java.math.BigDecimal.valueOf(v).stripTrailingZeros().toPlainString();
+  }
+
+  /** Whether {@link #run} ended the sampling early, every limit met (stopWhenConverged). */
+  boolean stoppedEarly() {
+    return stoppedEarly;
   }
 
   /** Destroys every broadcast still alive (call when the loop's RDDs are no longer needed). */

@@ -260,10 +260,37 @@ class EstimateJobTest {
   }
 
   @Test
+  void aRunThatMeetsItsLimitsEarlyStopsAndIsTheShorterRun() throws Exception {
+    // limits every parameter meets as soon as there are draws to judge (R-hat <= 100, any ESS):
+    // progress lines every 5 sweeps after 8 warmup sweeps, so the first judged one is sweep 15
+    // (7 kept; at sweep 10 only 2 are kept, fewer than the diagnostics' minimum of 4)
+    SamplerConfig early = new SamplerConfig(3, 8, 16, 1, 8, 0.8, 200, 4, 100, 0, 5, 2, 64, true,
+        false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE, 1, true);
+    SparkSession spark = spark("local[2]");
+    EstimateJob.Result r = run(spark, early, options("e1"));
+    assertEquals(EstimateJob.Status.CONVERGED, r.status());
+    assertEquals(15, r.sweepsDone());
+    // exactly the draws of a run made with 7 sampling sweeps
+    assertSameDraws(reference(r, small(2, 64, 7)), r.globalDraws());
+    JsonNode manifest = new ObjectMapper().readTree(out.resolve("e1/run.json").toFile());
+    assertEquals(7, manifest.at("/sampler/sampling_sweeps").asInt());
+    assertEquals(16, manifest.at("/sampler/sampling_sweeps_max").asInt());
+    assertTrue(manifest.at("/sampler/stop_when_converged").asBoolean());
+    Dataset<Row> s = spark.read().parquet(out.resolve("e1/posterior/store_draws").toString());
+    assertEquals((long) STORES * 3 * 7 * r.problem().dims().kpsi(), s.count());
+
+    // its final state is that of the 7-sweep run: extending it to 10 gives that run's draws
+    SamplerConfig ten = small(2, 64, 10);
+    EstimateJob.Result more = run(spark, ten, options("e2").withExtend(r.runDir()));
+    assertEquals(18, more.sweepsDone());
+    assertSameDraws(reference(more, ten), more.globalDraws());
+  }
+
+  @Test
   void aThinnedRunKeepsEveryOtherDrawOfTheSameChains() throws Exception {
     SamplerConfig all = small(2, 64, 8);
     SamplerConfig half = new SamplerConfig(3, 8, 8, 1, 8, 0.8, 200, 4, 1.01, 400, 5, 2, 64,
-        true, false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE, 2);
+        true, false, SamplerConfig.DEFAULT_MOMENTUM_PERSISTENCE, 2, false);
     SparkSession spark = spark("local[2]");
     EstimateJob.Result thinned = run(spark, half, options("t2"));
     // the Spark loop against the in-process runner, both thinned
@@ -364,6 +391,9 @@ class EstimateJobTest {
         "  partitions: 2",
         "  rhat_max: 1.01",
         "  ess_min: 100000",
+        // judged at sweeps 8 (4 kept) and 10, never met: the run goes to the end
+        "  stop_when_converged: true",
+        "  progress_every: 2",
         ""));
     spark("local[2]");
     String[] base = {"estimate", "--input", data.resolve("in").toString(), "--output",
