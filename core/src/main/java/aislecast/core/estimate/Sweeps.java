@@ -52,6 +52,13 @@ public final class Sweeps {
     return Streams.stream(seed, chain, -1, sweep, 1);
   }
 
+  /**
+   * Whether an accepted ridge shift reuses the position computed when it was proposed
+   * ({@link aislecast.core.mcmc.StoreChainState#ridgeNatural}); false only in the test that shows
+   * both ways give the same draws.
+   */
+  static boolean reuseRidgePositions = true;
+
   /** A new block with every chain started from its own globals (sweep -1 streams). */
   public static StoreBlock initStore(StoreData d, double[] x, int kx, LocalParams[] params,
       SamplerSettings set) {
@@ -104,11 +111,20 @@ public final class Sweeps {
     boolean keep = set.isKept(sweep);
     for (int c = 0; c < b.chains.length; c++) {
       StoreChainState s = b.chains[c];
-      if (in.applyShift()[c] != null) {
-        double[] nat = sampler.natural(s.position);
-        RidgeMove.apply(d, x, kx, nat, in.applyShift()[c]);
-        s.position = sampler.fromNatural(nat);
+      double[] accepted = in.applyShift()[c];
+      if (accepted != null) {
+        if (reuseRidgePositions && s.ridgeNatural != null
+            && java.util.Arrays.equals(s.ridgeShift, accepted)) {
+          // evaluated at the end of the last sweep from this very position
+          s.position = sampler.fromNatural(s.ridgeNatural);
+        } else {
+          double[] nat = sampler.natural(s.position);
+          RidgeMove.apply(d, x, kx, nat, accepted);
+          s.position = sampler.fromNatural(nat);
+        }
       }
+      s.ridgeShift = null;
+      s.ridgeNatural = null;
       SplitMix64 rng = storeStream(set.seed(), c, d.storeIndex, sweep);
       for (int k = 0; k < set.localSteps(); k++) {
         Hmc.Info info = sampler.step(rng, s, in.params()[c], local);
@@ -132,6 +148,8 @@ public final class Sweeps {
         out.salesDelta[c] += logJac + sampler.salesLogLikelihood(moved)
             - sampler.salesLogLikelihood(nat);
         addStatistics(d, moved, kpsi, out.proposed[c]);
+        s.ridgeShift = shift;
+        s.ridgeNatural = moved;
       }
     }
     if (keep) {

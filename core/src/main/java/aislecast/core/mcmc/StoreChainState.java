@@ -25,6 +25,15 @@ public final class StoreChainState implements Serializable {
   public long transitions;
   /** Momentum kept between transitions when the local kernel refreshes it partially, else null. */
   public double[] momentum;
+  /**
+   * The ridge shift this chain's locals were last evaluated under and the natural position it
+   * maps them to (null when none was proposed at the end of the last sweep). Applying an accepted
+   * shift next sweep reuses the position instead of repeating the same re-inversion: the same
+   * input gives the same numbers, so the draws do not depend on it, and a state without it (an
+   * older checkpoint) simply recomputes. Never changed once set, so copies share the arrays.
+   */
+  public double[] ridgeShift;
+  public double[] ridgeNatural;
 
   public StoreChainState copy() {
     StoreChainState s = new StoreChainState();
@@ -41,6 +50,8 @@ public final class StoreChainState implements Serializable {
     s.acceptSum = acceptSum;
     s.transitions = transitions;
     s.momentum = momentum == null ? null : momentum.clone();
+    s.ridgeShift = ridgeShift;
+    s.ridgeNatural = ridgeNatural;
     return s;
   }
 }
