@@ -120,7 +120,7 @@ final class SweepLoop {
   /** Continues from a checkpoint folder written by {@link StateCheckpoints#save}. */
   void resume(org.apache.hadoop.fs.Path sweepDir, ChainRecord saved) {
     record = saved;
-    state = checkpoints.readBlocks(sweepDir).map(b -> new SweptStore(b, null, 0L))
+    state = checkpoints.readBlocks(sweepDir, cfg.partitions()).map(b -> new SweptStore(b, null, 0L))
         .setName("stores@" + saved.nextSweep());
     state.persist(LEVEL).count();
     lastCheckpoint = saved.nextSweep();
@@ -135,7 +135,7 @@ final class SweepLoop {
     record = grown;
     int kpsi = dims.kpsi();
     int capacity = grown.keptCapacity();
-    state = earlier.readBlocks(sweepDir)
+    state = earlier.readBlocks(sweepDir, cfg.partitions())
         .map(b -> new SweptStore(b.withCapacity(kpsi, capacity), null, 0L))
         .setName("stores@" + grown.nextSweep() + " (extended)");
     state.persist(LEVEL).count();
@@ -307,7 +307,7 @@ final class SweepLoop {
     checkpoints.save(state, record);
     lastCheckpoint = record.nextSweep();
     org.apache.hadoop.fs.Path latest = checkpoints.latest().orElseThrow();
-    JavaRDD<SweptStore> reloaded = checkpoints.readBlocks(latest)
+    JavaRDD<SweptStore> reloaded = checkpoints.readBlocks(latest, cfg.partitions())
         .map(b -> new SweptStore(b, null, 0L))
         .setName("stores@" + record.nextSweep() + " (checkpoint)");
     reloaded.persist(LEVEL).count();

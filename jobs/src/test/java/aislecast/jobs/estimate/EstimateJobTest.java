@@ -29,6 +29,7 @@ import java.util.Arrays;
 import java.util.List;
 import java.util.stream.Stream;
 import java.util.concurrent.atomic.AtomicInteger;
+import org.apache.spark.api.java.JavaSparkContext;
 import org.apache.spark.scheduler.SparkListener;
 import org.apache.spark.scheduler.SparkListenerTaskEnd;
 import org.apache.spark.sql.Dataset;
@@ -187,6 +188,27 @@ class EstimateJobTest {
     assertNull(stopped.runDir());
     assertFalse(Files.exists(out.resolve("d")), "a stopped run must not be visible");
     assertTrue(Files.isDirectory(out.resolve(".work-d")));
+    // its checkpoint read back spread over any partition count by store index (the object file
+    // alone comes back split by file size, most splits empty once files are large), every store
+    // exactly once
+    StateCheckpoints saved = new StateCheckpoints(
+        JavaSparkContext.fromSparkContext(spark.sparkContext()),
+        out.resolve(".work-d").resolve(EstimateJob.CHECKPOINT_DIR).toString());
+    org.apache.hadoop.fs.Path latest = saved.latest().orElseThrow();
+    for (int parts : new int[] {1, 3, 7}) {
+      List<List<Integer>> byPartition = saved.readBlocks(latest, parts)
+          .map(b -> b.data.storeIndex).glom().collect();
+      assertEquals(parts, byPartition.size());
+      List<Integer> all = new java.util.ArrayList<>();
+      for (int p = 0; p < parts; p++) {
+        for (int index : byPartition.get(p)) {
+          assertEquals(p, index % parts, "store " + index + " in partition " + p);
+          all.add(index);
+        }
+      }
+      java.util.Collections.sort(all);
+      assertEquals(java.util.stream.IntStream.range(0, STORES).boxed().toList(), all);
+    }
     // without --resume the stopped run is protected
     RunFailure again = assertThrows(RunFailure.class, () -> run(spark, sc, options("d")));
     assertEquals(2, again.exitCode());
