@@ -233,14 +233,30 @@ final class SweepLoop {
     for (int p = 0; p < names.length; p++) {
       summaries[p] = Diagnostics.summarize(record.chainsOf(p));
     }
-    if (!EstimateJob.convergenceFailures(names, summaries, cfg.rhatMax(), cfg.essMin())
-        .isEmpty()) {
+    List<String> failures =
+        EstimateJob.convergenceFailures(names, summaries, cfg.rhatMax(), cfg.essMin());
+    if (!failures.isEmpty()) {
+      int slowest = -1;
+      for (int p = 0; p < names.length; p++) {
+        if (Double.isFinite(summaries[p].essBulk())
+            && (slowest < 0 || summaries[p].essBulk() < summaries[slowest].essBulk())) {
+          slowest = p;
+        }
+      }
+      log.info("convergence_check", String.format(java.util.Locale.ROOT, "  after %d sampling"
+          + " sweeps %d of %d global parameters are beyond the limits; smallest bulk ESS %.0f"
+          + " (%s), limit %s: going on (sampler.stop_when_converged)", sampled, failures.size(),
+          names.length, slowest < 0 ? Double.NaN : summaries[slowest].essBulk(),
+          slowest < 0 ? "-" : names[slowest], plain(cfg.essMin())), "sampling_sweeps", sampled,
+          "beyond_limits", failures.size(), "ess_bulk_min",
+          slowest < 0 ? Double.NaN : summaries[slowest].essBulk());
       return false;
     }
     log.info("converged_early", String.format(java.util.Locale.ROOT, "  every global parameter"
         + " within the limits (R-hat <= %s, bulk ESS >= %s) after %d of %d sampling sweeps:"
         + " stopping here (sampler.stop_when_converged)", plain(cfg.rhatMax()),
-        plain(cfg.essMin()), sampled, set.samplingSweeps()), "sampling_sweeps", sampled, "sampling_max", set.samplingSweeps());
+        plain(cfg.essMin()), sampled, set.samplingSweeps()), "sampling_sweeps", sampled,
+        "sampling_max", set.samplingSweeps());
     return true;
   }
 

@@ -430,6 +430,10 @@ class EstimateJobTest {
     assertTrue(err.toString().contains("--extend"), err.toString());
     assertTrue(f1out.toString().contains("sampling sweeps per chain (this run made 6"),
         f1out.toString());
+    // the check at sweep 8 (4 kept) says how far from the limits it is and goes on
+    assertTrue(f1out.toString().contains("after 4 sampling sweeps"), f1out.toString());
+    assertTrue(f1out.toString().contains("going on (sampler.stop_when_converged)"),
+        f1out.toString());
     JsonNode strict = new ObjectMapper().readTree(out.resolve("f1/run.json").toFile());
     assertEquals("not_converged", strict.get("status").asText());
     assertTrue(strict.get("convergence").get("failures").size() > 0);
