@@ -40,7 +40,8 @@ class RidgeReuseTest {
             "chain " + c + " draw " + d);
       }
       for (int s = 0; s < data.stores.size(); s++) {
-        assertArrayEquals(recomputed.stores().get(s).psiDraws[c], reused.stores().get(s).psiDraws[c]);
+        assertArrayEquals(recomputed.stores().get(s).psiDraws[c],
+            reused.stores().get(s).psiDraws[c]);
         assertArrayEquals(recomputed.stores().get(s).chains[c].position,
             reused.stores().get(s).chains[c].position);
       }

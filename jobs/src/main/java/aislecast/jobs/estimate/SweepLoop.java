@@ -120,7 +120,8 @@ final class SweepLoop {
   /** Continues from a checkpoint folder written by {@link StateCheckpoints#save}. */
   void resume(org.apache.hadoop.fs.Path sweepDir, ChainRecord saved) {
     record = saved;
-    state = checkpoints.readBlocks(sweepDir, cfg.partitions()).map(b -> new SweptStore(b, null, 0L))
+    state = checkpoints.readBlocks(sweepDir, cfg.partitions())
+        .map(b -> new SweptStore(b, null, 0L))
         .setName("stores@" + saved.nextSweep());
     state.persist(LEVEL).count();
     lastCheckpoint = saved.nextSweep();
