@@ -258,8 +258,7 @@ public final class EstimateJob {
         out.printf(Locale.ROOT, "  prior: sigma_p2 ~ Inv-Gamma(%s, %.4g), the scale from a"
             + " first-pass regression of log price on products and cost shifters"
             + " (price_noise_scale: auto)%n",
-            java.math.BigDecimal.valueOf(priors.sigmaP2().shape()).stripTrailingZeros()
-                .toPlainString(), priors.sigmaP2().scale());
+            plain(priors.sigmaP2().shape()), priors.sigmaP2().scale());
       }
       String key = runKey(problem, set, config);
       int partitions = sc.partitions() > 0 ? sc.partitions()
@@ -571,6 +570,23 @@ public final class EstimateJob {
     return (int) Math.min(Integer.MAX_VALUE, (kept + step - 1) / step * step);
   }
 
+  /** Index of the smallest finite bulk ESS in {@code summaries} (first of ties); -1 if none. */
+  static int slowest(ParameterSummary[] summaries) {
+    int slowest = -1;
+    for (int p = 0; p < summaries.length; p++) {
+      if (Double.isFinite(summaries[p].essBulk())
+          && (slowest < 0 || summaries[p].essBulk() < summaries[slowest].essBulk())) {
+        slowest = p;
+      }
+    }
+    return slowest;
+  }
+
+  /** {@code v} as written in a configuration: no exponent, no trailing zeros (0.01, 400, 2). */
+  static String plain(double v) {
+    return java.math.BigDecimal.valueOf(v).stripTrailingZeros().toPlainString();
+  }
+
   private static int gcd(int a, int b) {
     return b == 0 ? a : gcd(b, a % b);
   }
@@ -583,15 +599,13 @@ public final class EstimateJob {
         r.sweepsDone() / Math.max(1e-9, r.sweepSeconds()),
         100 * r.modelSeconds() / Math.max(1e-9, r.sweepSeconds() * cores), cores);
     double worst = Double.NaN;
-    double minEss = Double.NaN;
     for (ParameterSummary s : r.summaries()) {
       if (!(s.rhat() <= worst)) {
         worst = Double.isNaN(s.rhat()) ? worst : s.rhat();
       }
-      if (!(s.essBulk() >= minEss)) {
-        minEss = Double.isNaN(s.essBulk()) ? minEss : s.essBulk();
-      }
     }
+    int slowest = slowest(r.summaries());
+    double minEss = slowest < 0 ? Double.NaN : r.summaries()[slowest].essBulk();
     out.printf(Locale.ROOT, "  worst R-hat %.3f (limit %.3f), smallest bulk ESS %.0f (limit %.0f)"
         + " over %d global parameters%n", worst, sc.rhatMax(), minEss, sc.essMin(),
         r.parameterNames().length);

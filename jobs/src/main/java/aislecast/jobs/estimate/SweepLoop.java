@@ -206,8 +206,9 @@ final class SweepLoop {
         checkpoint();
       }
       if (done % cfg.progressEvery() == 0 || done == total) {
-        progress(done, total);
-        if (done < total && convergedAt(done)) {
+        ParameterSummary[] summaries = mayStopAt(done, total) ? summarizeKept() : null;
+        progress(done, total, summaries);
+        if (summaries != null && convergedAt(done, summaries)) {
           stoppedEarly = true;
           return true;
         }
@@ -217,46 +218,51 @@ final class SweepLoop {
   }
 
   /**
-   * Whether the sampling may end after {@code done} sweeps: asked for, in the sampling phase at a
-   * kept sweep, and every global parameter within the limits by the very test the finished run
-   * applies ({@link EstimateJob#convergenceFailures}). Checked at progress lines only, so the
-   * run looks at its diagnostics a bounded number of times (each look is a chance to stop on a
-   * lucky fluctuation: README, "Usage").
+   * Whether the run is to look at its diagnostics after {@code done} of {@code total} sweeps, to
+   * end early: asked for, before the last sweep, in the sampling phase at a kept sweep, with
+   * enough kept draws. Only progress lines are looked at, so the run looks a bounded number of
+   * times (each look is a chance to stop on a lucky fluctuation: README, "Usage").
    */
-  private boolean convergedAt(int done) {
+  private boolean mayStopAt(int done, int total) {
     SamplerSettings set = cfg.sampler();
     int sampled = done - set.warmupSweeps();
-    if (!cfg.stopWhenConverged() || sampled <= 0 || sampled % set.thin() != 0
-        || record.keptDraws < Diagnostics.MIN_DRAWS) {
-      return false;
-    }
+    return cfg.stopWhenConverged() && done < total && sampled > 0 && sampled % set.thin() == 0
+        && record.keptDraws >= Diagnostics.MIN_DRAWS;
+  }
+
+  private ParameterSummary[] summarizeKept() {
     ParameterSummary[] summaries = new ParameterSummary[names.length];
     for (int p = 0; p < names.length; p++) {
       summaries[p] = Diagnostics.summarize(record.chainsOf(p));
     }
+    return summaries;
+  }
+
+  /**
+   * Whether the sampling may end after {@code done} sweeps ({@link #mayStopAt}): every global
+   * parameter within the limits by the very test the finished run applies
+   * ({@link EstimateJob#convergenceFailures}) on the {@code summaries} of the kept draws.
+   */
+  private boolean convergedAt(int done, ParameterSummary[] summaries) {
+    SamplerSettings set = cfg.sampler();
+    int sampled = done - set.warmupSweeps();
     List<String> failures =
         EstimateJob.convergenceFailures(names, summaries, cfg.rhatMax(), cfg.essMin());
     if (!failures.isEmpty()) {
-      int slowest = -1;
-      for (int p = 0; p < names.length; p++) {
-        if (Double.isFinite(summaries[p].essBulk())
-            && (slowest < 0 || summaries[p].essBulk() < summaries[slowest].essBulk())) {
-          slowest = p;
-        }
-      }
+      int slowest = EstimateJob.slowest(summaries);
       log.info("convergence_check", String.format(java.util.Locale.ROOT, "  after %d sampling"
           + " sweeps %d of %d global parameters are beyond the limits; smallest bulk ESS %.0f"
           + " (%s), limit %s: going on (sampler.stop_when_converged)", sampled, failures.size(),
           names.length, slowest < 0 ? Double.NaN : summaries[slowest].essBulk(),
-          slowest < 0 ? "-" : names[slowest], plain(cfg.essMin())), "sampling_sweeps", sampled,
-          "beyond_limits", failures.size(), "ess_bulk_min",
+          slowest < 0 ? "-" : names[slowest], EstimateJob.plain(cfg.essMin())),
+          "sampling_sweeps", sampled, "beyond_limits", failures.size(), "ess_bulk_min",
           slowest < 0 ? Double.NaN : summaries[slowest].essBulk());
       return false;
     }
     log.info("converged_early", String.format(java.util.Locale.ROOT, "  every global parameter"
         + " within the limits (R-hat <= %s, bulk ESS >= %s) after %d of %d sampling sweeps:"
-        + " stopping here (sampler.stop_when_converged)", plain(cfg.rhatMax()),
-        plain(cfg.essMin()), sampled, set.samplingSweeps()), "sampling_sweeps", sampled,
+        + " stopping here (sampler.stop_when_converged)", EstimateJob.plain(cfg.rhatMax()),
+        EstimateJob.plain(cfg.essMin()), sampled, set.samplingSweeps()), "sampling_sweeps", sampled,
         "sampling_max", set.samplingSweeps());
     return true;
   }
@@ -276,10 +282,6 @@ final class SweepLoop {
     trimmed.persist(LEVEL).count();
     state.unpersist(false);
     state = trimmed;
-  }
-
-  private static String plain(double v) {
-    return java.math.BigDecimal.valueOf(v).stripTrailingZeros().toPlainString();
   }
 
   /** Whether {@link #run} ended the sampling early, every limit met (stopWhenConverged). */
@@ -333,12 +335,17 @@ final class SweepLoop {
     releaseBroadcasts();
   }
 
-  private void progress(int done, int total) {
+  /**
+   * Logs a progress line; the worst R-hat from {@code summaries} when given (those of the kept
+   * draws), else computed here.
+   */
+  private void progress(int done, int total, ParameterSummary[] summaries) {
     if (record.keptDraws >= Diagnostics.MIN_DRAWS) {
       worstRhat = Double.NaN;
       worstParameter = "";
       for (int p = 0; p < names.length; p++) {
-        double r = Diagnostics.rankRhat(record.chainsOf(p));
+        double r = summaries != null ? summaries[p].rhat()
+            : Diagnostics.rankRhat(record.chainsOf(p));
         if (Double.isFinite(r) && !(r <= worstRhat)) {
           worstRhat = r;
           worstParameter = names[p];

@@ -356,6 +356,23 @@ class EstimateJobTest {
   }
 
   @Test
+  void theSlowestParameterIsTheSmallestFiniteBulkEss() {
+    // hand-made summaries: ESS 120, NaN (constant draws), 30, 30: the first 30 is the slowest
+    var a = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.02, 120, 90, 0.1);
+    var held = new aislecast.core.diag.ParameterSummary(0, 0, 0, 0, 0, Double.NaN, Double.NaN,
+        Double.NaN, 0);
+    var b = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.1, 30, 40, 0.1);
+    var c = new aislecast.core.diag.ParameterSummary(0, 1, 0, 0, 0, 1.1, 30, 40, 0.1);
+    assertEquals(2, EstimateJob.slowest(
+        new aislecast.core.diag.ParameterSummary[] {a, held, b, c}));
+    assertEquals(-1, EstimateJob.slowest(new aislecast.core.diag.ParameterSummary[] {held}));
+    // configuration values print as written: no exponent, no trailing zeros
+    assertEquals("400", EstimateJob.plain(400));
+    assertEquals("0.01", EstimateJob.plain(0.01));
+    assertEquals("0.0001", EstimateJob.plain(1e-4));
+  }
+
+  @Test
   void outputsHaveTheDocumentedColumnsAndOneSummaryRowPerGlobalParameter() throws Exception {
     SamplerConfig sc = small(2, 64);
     SparkSession spark = spark("local[2]");
