@@ -250,13 +250,18 @@ final class SweepLoop {
         EstimateJob.convergenceFailures(names, summaries, cfg.rhatMax(), cfg.essMin());
     if (!failures.isEmpty()) {
       int slowest = EstimateJob.slowest(summaries);
+      double ess = slowest < 0 ? Double.NaN : summaries[slowest].essBulk();
+      int need = EstimateJob.samplingSweepsNeeded(summaries, cfg.essMin(), sampled, set.thin());
+      String eta = need > 0 ? String.format(java.util.Locale.ROOT, "; at its pace so far every"
+          + " bulk ESS reaches the limit near %d sampling sweeps, R-hat not extrapolated", need)
+          : "";
       log.info("convergence_check", String.format(java.util.Locale.ROOT, "  after %d sampling"
           + " sweeps %d of %d global parameters are beyond the limits; smallest bulk ESS %.0f"
-          + " (%s), limit %s: going on (sampler.stop_when_converged)", sampled, failures.size(),
-          names.length, slowest < 0 ? Double.NaN : summaries[slowest].essBulk(),
-          slowest < 0 ? "-" : names[slowest], EstimateJob.plain(cfg.essMin())),
-          "sampling_sweeps", sampled, "beyond_limits", failures.size(), "ess_bulk_min",
-          slowest < 0 ? Double.NaN : summaries[slowest].essBulk());
+          + " (%s), limit %s%s: going on (sampler.stop_when_converged)", sampled,
+          failures.size(), names.length, ess, slowest < 0 ? "-" : names[slowest],
+          EstimateJob.plain(cfg.essMin()), eta), "sampling_sweeps", sampled, "beyond_limits",
+          failures.size(), "ess_bulk_min", ess, "sampling_sweeps_needed_estimate",
+          need > 0 ? need : null);
       return false;
     }
     log.info("converged_early", String.format(java.util.Locale.ROOT, "  every global parameter"

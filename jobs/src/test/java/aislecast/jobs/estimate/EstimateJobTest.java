@@ -451,6 +451,11 @@ class EstimateJobTest {
     assertTrue(f1out.toString().contains("after 4 sampling sweeps"), f1out.toString());
     assertTrue(f1out.toString().contains("going on (sampler.stop_when_converged)"),
         f1out.toString());
+    // and where its pace so far would meet the ESS limit: far beyond 4 sweeps for 100,000
+    java.util.regex.Matcher near = java.util.regex.Pattern
+        .compile("reaches the limit near (\\d+) sampling sweeps").matcher(f1out.toString());
+    assertTrue(near.find(), f1out.toString());
+    assertTrue(Integer.parseInt(near.group(1)) > 100, near.group());
     JsonNode strict = new ObjectMapper().readTree(out.resolve("f1/run.json").toFile());
     assertEquals("not_converged", strict.get("status").asText());
     assertTrue(strict.get("convergence").get("failures").size() > 0);
