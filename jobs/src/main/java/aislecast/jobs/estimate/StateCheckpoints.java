@@ -2,18 +2,26 @@ package aislecast.jobs.estimate;
 
 import aislecast.core.estimate.StoreBlock;
 import aislecast.jobs.config.RunFailure;
+import java.io.ByteArrayInputStream;
 import java.io.IOException;
 import java.io.InputStream;
 import java.io.ObjectInputStream;
 import java.io.ObjectOutputStream;
+import java.io.ObjectStreamClass;
 import java.io.OutputStream;
+import java.util.ArrayList;
+import java.util.List;
 import java.util.Optional;
 import org.apache.hadoop.fs.FileStatus;
 import org.apache.hadoop.fs.FileSystem;
 import org.apache.hadoop.fs.Path;
+import org.apache.hadoop.io.BytesWritable;
+import org.apache.hadoop.io.NullWritable;
+import org.apache.hadoop.mapred.SequenceFileInputFormat;
 import org.apache.spark.HashPartitioner;
 import org.apache.spark.api.java.JavaRDD;
 import org.apache.spark.api.java.JavaSparkContext;
+import org.apache.spark.api.java.function.Function;
 import scala.Tuple2;
 
 /**
@@ -112,26 +120,68 @@ final class StateCheckpoints {
     }
   }
 
-  /** The store blocks of a checkpoint, partitioned as the object file's splits fall. */
+  /**
+   * The store blocks of a checkpoint, one partition per file of the save, as the state was
+   * partitioned when saved. Read as Spark's {@code objectFile} writes them (a sequence file of
+   * Java-serialised arrays of blocks), but never splitting a file: {@code objectFile} splits by
+   * file size, and every extra split became a partition, mostly empty; a 100-store run was seen
+   * with 288 partitions after 35 checkpoints, 276 of them empty, so each sweep scheduled 288 tasks.
+   */
   JavaRDD<StoreBlock> readBlocks(Path sweepDir) {
-    return jsc.objectFile(new Path(sweepDir, BLOCKS_DIR).toString());
+    return jsc.hadoopFile(new Path(sweepDir, BLOCKS_DIR).toString(), WholeFiles.class,
+            NullWritable.class, BytesWritable.class)
+        .flatMap(kv -> blocksOf(kv._2()).iterator());
   }
 
   /**
    * The store blocks of a checkpoint spread over {@code partitions} partitions by store index
-   * (index modulo the count). An object file comes back split by file size, not by store: every
-   * file of the save (one per partition, empty ones included) is at least one split and a file
-   * above the block size is several, most of them empty. Read back as is, the partitions grew at
-   * every checkpoint; a 100-store run was seen with 288 partitions after 35 checkpoints, 276 of
-   * them empty and the other 12 holding 5 or 10 stores, so each sweep scheduled 288 tasks. The
-   * shuffle costs one pass over the state per checkpoint. Draws do not depend on it (they do not
-   * depend on the partitioning: {@code EstimateJobTest}).
+   * (index modulo the count), as {@link SweepLoop} keeps its state. A checkpoint it saved with
+   * that count is already laid out so (one file per partition) and comes back without a shuffle;
+   * any other count (a resume with another {@code sampler.partitions}) costs one shuffle of the
+   * state. Draws do not depend on the partitioning ({@code EstimateJobTest}).
    */
   JavaRDD<StoreBlock> readBlocks(Path sweepDir, int partitions) {
-    return readBlocks(sweepDir)
-        .mapToPair(b -> new Tuple2<>(b.data.storeIndex, b))
+    JavaRDD<StoreBlock> blocks = readBlocks(sweepDir);
+    return blocks.getNumPartitions() == partitions ? blocks
+        : byStoreIndex(blocks, b -> b.data.storeIndex, partitions);
+  }
+
+  /** {@code rdd} spread over {@code partitions} partitions by store index (modulo the count). */
+  static <T> JavaRDD<T> byStoreIndex(JavaRDD<T> rdd, Function<T, Integer> storeIndex,
+      int partitions) {
+    return rdd.mapToPair(b -> new Tuple2<>(storeIndex.call(b), b))
         .partitionBy(new HashPartitioner(partitions))
         .values();
+  }
+
+  /** Deserialises one record of a Spark object file: a Java-serialised array of blocks. */
+  private static List<StoreBlock> blocksOf(BytesWritable bytes)
+      throws IOException, ClassNotFoundException {
+    ClassLoader loader = Thread.currentThread().getContextClassLoader();
+    try (ObjectInputStream in = new ObjectInputStream(
+        new ByteArrayInputStream(bytes.getBytes(), 0, bytes.getLength())) {
+          @Override
+          protected Class<?> resolveClass(ObjectStreamClass desc)
+              throws IOException, ClassNotFoundException {
+            // the application's classes (a cluster's executors load them from the job's jar)
+            return Class.forName(desc.getName(), false, loader);
+          }
+        }) {
+      List<StoreBlock> out = new ArrayList<>();
+      for (Object o : (Object[]) in.readObject()) {
+        out.add((StoreBlock) o);
+      }
+      return out;
+    }
+  }
+
+  /** Sequence files read whole: one split per file. */
+  public static final class WholeFiles
+      extends SequenceFileInputFormat<NullWritable, BytesWritable> {
+    @Override
+    protected boolean isSplitable(FileSystem fs, Path file) {
+      return false;
+    }
   }
 
   boolean exists() {

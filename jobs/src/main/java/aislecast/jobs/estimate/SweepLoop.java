@@ -97,7 +97,10 @@ final class SweepLoop {
     Broadcast<Map<String, double[][]>> bw = jsc.broadcast(warm);
     double[] x = problem.catalog().x();
     int kx = problem.kx();
-    JavaRDD<SweptStore> init = jsc.parallelize(problem.stores(), cfg.partitions())
+    // laid out by store index as checkpoints are read back, so a reload keeps the layout
+    JavaRDD<StoreData> stores = StateCheckpoints.byStoreIndex(
+        jsc.parallelize(problem.stores(), cfg.partitions()), d -> d.storeIndex, cfg.partitions());
+    JavaRDD<SweptStore> init = stores
         .map(d -> {
           StoreBlock b = Sweeps.initStore(d, x, kx, bp.value(), set);
           double[][] pos = bw.value().get(d.storeId);

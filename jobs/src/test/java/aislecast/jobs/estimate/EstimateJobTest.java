@@ -188,16 +188,19 @@ class EstimateJobTest {
     assertNull(stopped.runDir());
     assertFalse(Files.exists(out.resolve("d")), "a stopped run must not be visible");
     assertTrue(Files.isDirectory(out.resolve(".work-d")));
-    // its checkpoint read back spread over any partition count by store index (the object file
-    // alone comes back split by file size, most splits empty once files are large), every store
-    // exactly once
+    // its checkpoint read back spread over any partition count by store index, every store
+    // exactly once: with the count it was saved with (2, one file each) as saved, without a
+    // shuffle, and that layout is by store index too; with any other count after a shuffle
     StateCheckpoints saved = new StateCheckpoints(
         JavaSparkContext.fromSparkContext(spark.sparkContext()),
         out.resolve(".work-d").resolve(EstimateJob.CHECKPOINT_DIR).toString());
     org.apache.hadoop.fs.Path latest = saved.latest().orElseThrow();
-    for (int parts : new int[] {1, 3, 7}) {
-      List<List<Integer>> byPartition = saved.readBlocks(latest, parts)
-          .map(b -> b.data.storeIndex).glom().collect();
+    assertEquals(2, saved.readBlocks(latest).getNumPartitions());
+    for (int parts : new int[] {1, 2, 3, 7}) {
+      var read = saved.readBlocks(latest, parts);
+      assertEquals(parts != 2, read.rdd().toDebugString().contains("ShuffledRDD"),
+          "shuffled only to change the count: " + read.rdd().toDebugString());
+      List<List<Integer>> byPartition = read.map(b -> b.data.storeIndex).glom().collect();
       assertEquals(parts, byPartition.size());
       List<Integer> all = new java.util.ArrayList<>();
       for (int p = 0; p < parts; p++) {
