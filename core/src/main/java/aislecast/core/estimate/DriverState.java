@@ -46,6 +46,24 @@ public record DriverState(
     return globals.length;
   }
 
+  /**
+   * Chain {@code c}'s ridge proposal sd along each component of {@code psi}: its scale times the
+   * length of each row of its factor (the proposal is {@code scale * L z}, {@code z ~ N(0, I)}).
+   */
+  public double[] ridgeProposalSd(int c) {
+    double[] l = ridgeChol[c];
+    int k = (int) Math.round(Math.sqrt(l.length));
+    double[] sd = new double[k];
+    for (int i = 0; i < k; i++) {
+      double v = 0;
+      for (int q = 0; q < k; q++) {
+        v += l[i * k + q] * l[i * k + q];
+      }
+      sd[i] = ridgeScale[c] * Math.sqrt(v);
+    }
+    return sd;
+  }
+
   /** Share of ridge proposals accepted, over chains. */
   public double ridgeAcceptance() {
     long a = 0;

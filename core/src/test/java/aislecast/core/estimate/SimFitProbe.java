@@ -381,6 +381,9 @@ public final class SimFitProbe {
       System.out.printf("%-22s truth %8.3f mean %8.3f [%8.3f %8.3f] %s rhat %.3f essb %.0f%n", names[p], truth[p], s.mean(), s.q05(), s.q95(), in ? " " : "*", s.rhat(), s.essBulk());
     }
     slowDirections(res.globalDraws(), names, 25);
+    if (System.getenv("CHAINS") != null) {
+      chainBalance(res, keep);
+    }
     if (System.getenv("PSIESS") != null) {
       // per psi component: bulk ESS of each store's draws (median and smallest over stores) and
       // of the stores' mean psi, i.e. how fast the locals themselves mix
@@ -485,12 +488,67 @@ public final class SimFitProbe {
     {
       int kp = res.dims().kpsi();
       for (int c = 0; c < 4; c++) {
-        double[] l = res.last().ridgeChol()[c];
+        double[] sd = res.last().ridgeProposalSd(c);
         StringBuilder b = new StringBuilder("ridge proposal sd chain " + c + ":");
-        for (int i = 0; i < kp; i++) { double v = 0; for (int m = 0; m <= i; m++) v += l[i * kp + m] * l[i * kp + m]; b.append(String.format(" %.3f", res.last().ridgeScale()[c] * Math.sqrt(v))); }
+        for (int i = 0; i < kp; i++) b.append(String.format(" %.3f", sd[i]));
         System.out.println(b);
       }
     }
     System.out.printf("covered %d/%d, max rhat %.3f, min ess %.0f, ridge acceptance %.2f, local acceptance %.2f%n", covered, names.length, maxRhat, minEss, res.last().ridgeAcceptance(), res.meanLocalAcceptance());
+  }
+
+  /**
+   * CHAINS=1: each chain's own bulk ESS for the ten slowest globals, and per chain the ridge
+   * proposal sd along each component of Gamma's intercept row next to that chain's spread of
+   * the kept draws (the in-process form of the jobs' ChainBalanceProbe).
+   */
+  static void chainBalance(InProcessRunner.Result res, int keep) {
+    String[] names = res.parameterNames();
+    int np = names.length;
+    int chains = res.globalDraws().length;
+    double[][][] by = new double[np][chains][keep];
+    for (int c = 0; c < chains; c++) {
+      for (int i = 0; i < keep; i++) {
+        for (int p = 0; p < np; p++) {
+          by[p][c][i] = res.globalDraws()[c][i][p];
+        }
+      }
+    }
+    Integer[] order = new Integer[np];
+    double[] ess = new double[np];
+    for (int p = 0; p < np; p++) {
+      order[p] = p;
+      double e = Diagnostics.essBulk(by[p]);
+      ess[p] = Double.isFinite(e) ? e : Double.MAX_VALUE;
+    }
+    java.util.Arrays.sort(order, (a, b) -> Double.compare(ess[a], ess[b]));
+    System.out.println("ten slowest: all chains' bulk ESS | each chain's");
+    for (int q = 0; q < Math.min(10, np); q++) {
+      int p = order[q];
+      StringBuilder b = new StringBuilder();
+      for (int c = 0; c < chains; c++) {
+        b.append(String.format(" %5.0f", Diagnostics.essBulk(new double[][] {by[p][c]})));
+      }
+      System.out.printf("  %-22s %6.0f |%s%n", names[p], ess[p], b);
+    }
+    DriverState st = res.last();
+    int k = res.dims().kpsi();
+    System.out.println("ridge proposal sd / sd of the kept draws, per component of Gamma's intercept row:");
+    for (int c = 0; c < chains; c++) {
+      double[] sd = st.ridgeProposalSd(c);
+      StringBuilder b = new StringBuilder();
+      for (int i = 0; i < k; i++) {
+        double m = 0;
+        double m2 = 0;
+        for (double y : by[i][c]) {
+          m += y;
+          m2 += y * y;
+        }
+        m /= keep;
+        b.append(String.format(" %.4f/%.4f", sd[i], Math.sqrt(Math.max(0, m2 / keep - m * m))));
+      }
+      System.out.printf("  chain %d (accepted %d of %d):%s%n", c, st.ridgeAccepted()[c],
+          st.ridgeProposed()[c], b);
+    }
   }
 }

@@ -50,13 +50,9 @@ public final class ChainBalanceProbe {
     System.out.println("ridge proposal sd / sd of the kept draws, per component of Gamma's"
         + " intercept row");
     for (int c = 0; c < st.chains(); c++) {
-      double[] l = st.ridgeChol()[c];
+      double[] sd = st.ridgeProposalSd(c);
       StringBuilder b = new StringBuilder();
       for (int i = 0; i < k; i++) {
-        double v = 0;
-        for (int q = 0; q < k; q++) {
-          v += l[i * k + q] * l[i * k + q];
-        }
         double[] x = r.chainsOf(i)[c];
         double m = 0;
         double m2 = 0;
@@ -65,7 +61,7 @@ public final class ChainBalanceProbe {
           m2 += y * y;
         }
         m /= x.length;
-        b.append(String.format(Locale.ROOT, " %.4f/%.4f", st.ridgeScale()[c] * Math.sqrt(v),
+        b.append(String.format(Locale.ROOT, " %.4f/%.4f", sd[i],
             Math.sqrt(Math.max(0, m2 / x.length - m * m))));
       }
       System.out.printf(Locale.ROOT, "chain %d (accepted %d of %d):%s%n", c,
