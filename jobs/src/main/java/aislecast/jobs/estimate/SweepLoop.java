@@ -255,16 +255,20 @@ final class SweepLoop {
       int slowest = EstimateJob.slowest(summaries);
       double ess = slowest < 0 ? Double.NaN : summaries[slowest].essBulk();
       int need = EstimateJob.samplingSweepsNeeded(summaries, cfg.essMin(), sampled, set.thin());
+      // seconds to that point at this process's pace (its sweeps so far, checkpoints included)
+      int doneHere = done - sweepsAtStart;
+      double left = doneHere > 0 && need > sampled
+          ? (System.nanoTime() - runStartNanos) * 1e-9 / doneHere * (need - sampled) : Double.NaN;
       String eta = need > 0 ? String.format(java.util.Locale.ROOT, "; at its pace so far every"
-          + " bulk ESS reaches the limit near %d sampling sweeps, R-hat not extrapolated", need)
-          : "";
+          + " bulk ESS reaches the limit near %d sampling sweeps (%s from here), R-hat not"
+          + " extrapolated", need, clock(left)) : "";
       log.info("convergence_check", String.format(java.util.Locale.ROOT, "  after %d sampling"
           + " sweeps %d of %d global parameters are beyond the limits; smallest bulk ESS %.0f"
           + " (%s), limit %s%s: going on (sampler.stop_when_converged)", sampled,
           failures.size(), names.length, ess, slowest < 0 ? "-" : names[slowest],
           EstimateJob.plain(cfg.essMin()), eta), "sampling_sweeps", sampled, "beyond_limits",
           failures.size(), "ess_bulk_min", ess, "sampling_sweeps_needed_estimate",
-          need > 0 ? need : null);
+          need > 0 ? need : null, "eta_to_estimate_s", left);
       return false;
     }
     log.info("converged_early", String.format(java.util.Locale.ROOT, "  every global parameter"

@@ -456,7 +456,8 @@ class EstimateJobTest {
         f1out.toString());
     // and where its pace so far would meet the ESS limit: far beyond 4 sweeps for 100,000
     java.util.regex.Matcher near = java.util.regex.Pattern
-        .compile("reaches the limit near (\\d+) sampling sweeps").matcher(f1out.toString());
+        .compile("reaches the limit near (\\d+) sampling sweeps \\(\\d+:\\d\\d:\\d\\d from here\\)")
+        .matcher(f1out.toString());
     assertTrue(near.find(), f1out.toString());
     assertTrue(Integer.parseInt(near.group(1)) > 100, near.group());
     JsonNode strict = new ObjectMapper().readTree(out.resolve("f1/run.json").toFile());
