@@ -3,9 +3,6 @@ package aislecast.jobs.estimate;
 import aislecast.core.diag.Diagnostics;
 import aislecast.core.estimate.DriverState;
 import aislecast.core.globals.Globals;
-import java.io.BufferedInputStream;
-import java.io.FileInputStream;
-import java.io.ObjectInputStream;
 import java.util.Locale;
 
 /**
@@ -22,11 +19,7 @@ public final class ChainBalanceProbe {
   private ChainBalanceProbe() {}
 
   public static void main(String[] args) throws Exception {
-    ChainRecord r;
-    try (ObjectInputStream in = new ObjectInputStream(
-        new BufferedInputStream(new FileInputStream(args[0])))) {
-      r = (ChainRecord) in.readObject();
-    }
+    ChainRecord r = ProbeFiles.readRecord(args[0]);
     DriverState st = r.state;
     String[] names = Globals.parameterNames(st.globals()[0].dims());
     System.out.printf(Locale.ROOT, "%d kept draws per chain, %d chains%n", r.keptDraws,

@@ -13,9 +13,6 @@ import aislecast.jobs.config.RunConfig;
 import aislecast.jobs.config.RunConfigLoader;
 import aislecast.jobs.validate.InputValidator;
 import aislecast.jobs.validate.ValidatedInput;
-import java.io.BufferedInputStream;
-import java.io.FileInputStream;
-import java.io.ObjectInputStream;
 import java.nio.file.Files;
 import java.nio.file.Path;
 import java.util.List;
@@ -69,11 +66,8 @@ public final class RidgeCurvatureProbe {
             problem.dims().kc())
         : Double.NaN;
     Priors priors = config.priors().toPriors(problem.kd(), problem.kx(), firstPass);
-    ChainRecord record;
-    try (ObjectInputStream in = new ObjectInputStream(new BufferedInputStream(
-        new FileInputStream(Path.of(args[2], StateCheckpoints.DRIVER_FILE).toFile())))) {
-      record = (ChainRecord) in.readObject();
-    }
+    ChainRecord record = ProbeFiles.readRecord(
+        Path.of(args[2], StateCheckpoints.DRIVER_FILE).toString());
     StateCheckpoints checkpoints = new StateCheckpoints(jsc, sweepDir.getParent().toString());
     List<StoreBlock> blocks = checkpoints.readBlocks(sweepDir).collect();
     spark.stop();

@@ -1,10 +1,7 @@
 package aislecast.jobs.estimate;
 
 import aislecast.core.estimate.DriverState;
-import java.io.BufferedInputStream;
-import java.io.FileInputStream;
 import java.io.FileOutputStream;
-import java.io.ObjectInputStream;
 import java.io.ObjectOutputStream;
 
 /**
@@ -20,11 +17,7 @@ public final class SwapRidgeProposals {
   private SwapRidgeProposals() {}
 
   public static void main(String[] args) throws Exception {
-    ChainRecord r;
-    try (ObjectInputStream in = new ObjectInputStream(
-        new BufferedInputStream(new FileInputStream(args[0])))) {
-      r = (ChainRecord) in.readObject();
-    }
+    ChainRecord r = ProbeFiles.readRecord(args[0]);
     int a = Integer.parseInt(args[2]);
     int b = Integer.parseInt(args[3]);
     DriverState s = r.state;

@@ -1,9 +1,6 @@
 package aislecast.jobs.estimate;
 
 import aislecast.core.diag.Diagnostics;
-import java.io.BufferedInputStream;
-import java.io.FileInputStream;
-import java.io.ObjectInputStream;
 import java.util.Arrays;
 import java.util.Locale;
 
@@ -19,11 +16,7 @@ public final class WindowEssProbe {
   private WindowEssProbe() {}
 
   public static void main(String[] args) throws Exception {
-    ChainRecord r;
-    try (ObjectInputStream in = new ObjectInputStream(
-        new BufferedInputStream(new FileInputStream(args[0])))) {
-      r = (ChainRecord) in.readObject();
-    }
+    ChainRecord r = ProbeFiles.readRecord(args[0]);
     int p = Integer.parseInt(args[1]);
     int from = Integer.parseInt(args[2]);
     int len = Integer.parseInt(args[3]);
