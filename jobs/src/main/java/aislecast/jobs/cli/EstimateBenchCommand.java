@@ -5,6 +5,7 @@ import aislecast.core.sim.DemandSimulator;
 import aislecast.core.sim.SimSettings;
 import aislecast.core.sim.SimWriter;
 import aislecast.jobs.config.RunConfig;
+import aislecast.jobs.config.RunConfigLoader;
 import aislecast.jobs.config.SamplerConfig;
 import aislecast.jobs.estimate.EstimateJob;
 import aislecast.jobs.spark.SparkSessions;
@@ -61,6 +62,13 @@ public final class EstimateBenchCommand implements Callable<Integer> {
   @Option(names = "--master", defaultValue = "local[*]", description = "Spark master (default: ${DEFAULT-VALUE}).")
   String master;
 
+  @Option(names = "--conf", paramLabel = "FILE",
+      description = "Run configuration whose priors: and sampler: settings the runs use (as for"
+          + " estimate); this command's --warmup, --sampling, --chains, --local-steps and"
+          + " --leapfrog-steps replace the file's, and every run does all its sweeps"
+          + " (sampler.stop_when_converged off, thin 1). Default: the built-in defaults.")
+  Path conf;
+
   @Option(names = "--work", paramLabel = "DIR",
       description = "Folder for generated data and runs (default: a new temporary folder).")
   Path work;
@@ -69,13 +77,16 @@ public final class EstimateBenchCommand implements Callable<Integer> {
   public Integer call() throws Exception {
     PrintWriter out = new PrintWriter(System.out, true);
     Path dir = work != null ? work : Files.createTempDirectory("aislecast-bench-");
-    SamplerConfig sc = SamplerConfig.defaults().withSweeps(warmup, sampling);
-    sc = new SamplerConfig(chains, sc.warmup(), sc.sampling(),
-        localSteps != null ? localSteps : sc.localSteps(),
-        leapfrogSteps != null ? leapfrogSteps : sc.leapfrogSteps(), sc.targetAccept(), sc.shopperDraws(), sc.checkpointEvery(),
-        sc.rhatMax(), sc.essMin(), 1, sc.partitions(), sc.sumGroup(), sc.ridgeMove(),
-        sc.fixLambdaZero(), sc.momentumPersistence());
-    RunConfig config = RunConfig.defaults().withSampler(sc);
+    RunConfig loaded = RunConfigLoader.load(conf);
+    SamplerConfig base = loaded.sampler();
+    // thin 1 and stop_when_converged off (this constructor's): every run does all its sweeps
+    SamplerConfig sc = new SamplerConfig(chains, warmup, sampling,
+        localSteps != null ? localSteps : base.localSteps(),
+        leapfrogSteps != null ? leapfrogSteps : base.leapfrogSteps(), base.targetAccept(),
+        base.shopperDraws(), base.checkpointEvery(), base.rhatMax(), base.essMin(), 1,
+        base.partitions(), base.sumGroup(), base.ridgeMove(), base.fixLambdaZero(),
+        base.momentumPersistence());
+    RunConfig config = loaded.withSampler(sc);
     List<String> rows = new ArrayList<>();
     int cores;
     try (SparkSessions.Handle spark = SparkSessions.open(master, "aislecast estimate-bench")) {
@@ -91,7 +102,8 @@ public final class EstimateBenchCommand implements Callable<Integer> {
         String runId = "bench-x" + scale + "-" + System.currentTimeMillis();
         out.println("estimate-bench: " + s.stores() + " stores (" + scale + "x), " + chains
             + " chains, " + warmup + " + " + sampling + " sweeps, " + sc.localSteps() + " x "
-            + sc.leapfrogSteps() + " local steps, master " + master + " ...");
+            + sc.leapfrogSteps() + " local steps, master " + master
+            + (conf == null ? "" : ", configuration " + conf) + " ...");
         EstimateJob.Result r = EstimateJob.run(spark.spark(), config,
             EstimateJob.Options.of(input.toString(), dir.resolve("runs").toString(), runId,
                 CommonOptions.DEFAULT_SEED).withAllowUnconverged(true), out);
