@@ -68,7 +68,10 @@ public record SamplerSettings(
         + ") must be a multiple of thin (" + thin + ")");
   }
 
-  /** Default of {@link #momentumPersistence} (README, "Estimation: what works and what does not"). */
+  /**
+   * Default of {@link #momentumPersistence} (docs/sampler-record.md, "Momentum kept between
+   * sweeps").
+   */
   public static final double DEFAULT_MOMENTUM_PERSISTENCE = 0.9;
 
   public static SamplerSettings defaults(long seed) {

@@ -37,8 +37,8 @@ import org.ejml.dense.row.CommonOps_DDRM;
  *
  * <p>Not validated, most likely wrong: on seed 22 one chain went to sigma_xi2 about 23 and tau2
  * about 9, and on a 6-store case where the default sampler converges (V_psi taste diagonal
- * 0.33-0.35, tau2 0.12) this probe gives 3.4-11.5 and 31 (README, "Estimation: what works and what
- * does not"). Find the error before using its numbers.
+ * 0.33-0.35, tau2 0.12) this probe gives 3.4-11.5 and 31 (docs/sampler-record.md,
+ * the affine move). Find the error before using its numbers.
  */
 final class AffineTasteHook implements InProcessRunner.SweepHook {
   private final int warmup;
